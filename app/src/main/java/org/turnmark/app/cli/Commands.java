@@ -1,0 +1,14 @@
+package org.turnmark.app.cli;
+
+import picocli.CommandLine;
+
+/** The registry of subcommands, in the order {@code --help} lists them. */
+final class Commands {
+
+    private Commands() {
+    }
+
+    static void register(CommandLine cl) {
+        // Each subcommand is added here as it is built.
+    }
+}
