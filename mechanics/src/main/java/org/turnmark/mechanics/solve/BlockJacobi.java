@@ -1,0 +1,51 @@
+package org.turnmark.mechanics.solve;
+
+import org.turnmark.geom.Parallel;
+
+/** Block-Jacobi preconditioner: the inverses of the b×b diagonal blocks (b = 3 or 6). */
+final class BlockJacobi implements Preconditioner {
+
+    double[] inv = new double[0];
+    private int rows;
+    private int b;
+
+    @Override
+    public void setup(BlockCsr a) {
+        rows = a.rows;
+        b = a.b;
+        int bb = b * b;
+        if (inv.length != rows * bb) {
+            inv = new double[rows * bb];
+        }
+        Parallel.forEachBlock(Parallel.blockCount(rows, BlockCsr.ROW_BLOCK), (long) rows * bb * b, blk -> {
+            int from = blk * BlockCsr.ROW_BLOCK;
+            int to = Math.min(rows, from + BlockCsr.ROW_BLOCK);
+            double[] m = new double[bb];
+            for (int r = from; r < to; r++) {
+                System.arraycopy(a.val, bb * a.diag[r], m, 0, bb);
+                DenseOps.invertSpd(m, b, inv, bb * r, r);
+            }
+        });
+    }
+
+    @Override
+    public void apply(double[] r, double[] z) {
+        final int bs = b;
+        final int bb = b * b;
+        Parallel.forEachBlock(Parallel.blockCount(rows, BlockCsr.ROW_BLOCK), (long) rows * bb, blk -> {
+            int from = blk * BlockCsr.ROW_BLOCK;
+            int to = Math.min(rows, from + BlockCsr.ROW_BLOCK);
+            for (int n = from; n < to; n++) {
+                int o = bs * n;
+                int v = bb * n;
+                for (int i = 0; i < bs; i++) {
+                    double s = 0;
+                    for (int j = 0; j < bs; j++) {
+                        s += inv[v + bs * i + j] * r[o + j];
+                    }
+                    z[o + i] = s;
+                }
+            }
+        });
+    }
+}
