@@ -10,6 +10,8 @@ Files (all raw little-endian, no header; shapes and meanings in fixtures.json):
   linear.f64            map_coordinates(order=1) at points_inside
   cubic_mirror.f64      map_coordinates(order=3, mode='mirror', prefilter=True) at points_inside
   linear_nearest.f64    map_coordinates(order=1, mode='nearest') at points_outside
+  percentiles.f64       numpy.percentile (default 'linear' method) at 1, 50, 99 % of all voxels,
+                        then of the voxels with value > 0.2 (the masked case), float64
   gauss.f64             gaussian_filter(volume, sigma=(sz, sy, sx) voxels, mode='reflect',
                         truncate=4.0), float64 output, x fastest
 """
@@ -49,6 +51,8 @@ v64 = vol.astype(np.float64)
 linear = ndimage.map_coordinates(v64, zyx(pts_in), order=1, mode="mirror", prefilter=False)
 cubic = ndimage.map_coordinates(v64, zyx(pts_in), order=3, mode="mirror", prefilter=True)
 linear_nearest = ndimage.map_coordinates(v64, zyx(pts_out), order=1, mode="nearest", prefilter=False)
+levels = [1, 50, 99]
+percentiles = np.concatenate([np.percentile(v64, levels), np.percentile(v64[v64 > 0.2], levels)])
 gauss = ndimage.gaussian_filter(v64, sigma=SIGMA_VOXELS_XYZ[::-1], mode="reflect", truncate=4.0)
 
 vol.tofile("volume.f32")
@@ -58,6 +62,7 @@ linear.astype("<f8").tofile("linear.f64")
 cubic.astype("<f8").tofile("cubic_mirror.f64")
 linear_nearest.astype("<f8").tofile("linear_nearest.f64")
 gauss.astype("<f8").tofile("gauss.f64")
+percentiles.astype("<f8").tofile("percentiles.f64")
 
 with open("fixtures.json", "w") as f:
     json.dump({
@@ -67,6 +72,8 @@ with open("fixtures.json", "w") as f:
         "points_outside": n_out,
         "sigma_voxels_xyz": list(SIGMA_VOXELS_XYZ),
         "gaussian_truncate": 4.0,
+        "percentile_levels": levels,
+        "percentile_mask": "value > 0.2",
         "byte_order": "little-endian",
     }, f, indent=2)
     f.write("\n")
