@@ -56,6 +56,62 @@ final class BSplinePrefilter {
     }
 
     /**
+     * Filters {@code w} interleaved lines at once: {@code b[r*w + i]} is sample r of line i, for r in
+     * [0, n). Same arithmetic as {@link #filterLine} per line, with the inner loop over i so that the
+     * y and z passes walk memory contiguously (the strided one-line-at-a-time walk was several times
+     * slower on a 256×256×160 volume).
+     *
+     * @param acc scratch of length ≥ w
+     */
+    static void filterLines(double[] b, int n, int w, double[] acc) {
+        if (n < 2) {
+            return;
+        }
+        final double z = POLE;
+        final int total = n * w;
+        for (int q = 0; q < total; q++) {
+            b[q] *= GAIN;
+        }
+        final double zn1 = Math.pow(z, n - 1);
+        final int last = (n - 1) * w;
+        for (int i = 0; i < w; i++) {
+            acc[i] = b[i] + zn1 * b[last + i];
+        }
+        double zi = z;
+        for (int r = 1; r < n - 1; r++) {
+            int fr = r * w;
+            int bk = (n - 1 - r) * w;
+            for (int i = 0; i < w; i++) {
+                acc[i] += zi * (b[fr + i] + zn1 * b[bk + i]);
+            }
+            zi *= z;
+        }
+        final double norm = 1 - zn1 * zn1;
+        for (int i = 0; i < w; i++) {
+            b[i] = acc[i] / norm;
+        }
+        for (int r = 1; r < n; r++) {
+            int cur = r * w;
+            int prev = cur - w;
+            for (int i = 0; i < w; i++) {
+                b[cur + i] += z * b[prev + i];
+            }
+        }
+        final double anti = z / (z * z - 1);
+        final int before = (n - 2) * w;
+        for (int i = 0; i < w; i++) {
+            b[last + i] = (z * b[before + i] + b[last + i]) * anti;
+        }
+        for (int r = n - 2; r >= 0; r--) {
+            int cur = r * w;
+            int next = cur + w;
+            for (int i = 0; i < w; i++) {
+                b[cur + i] = z * (b[next + i] - b[cur + i]);
+            }
+        }
+    }
+
+    /**
      * Prefilters {@code c} in place along x, then y, then z.
      *
      * @param c  samples on an nx×ny×nz grid (x fastest); replaced by the coefficients
@@ -65,44 +121,44 @@ final class BSplinePrefilter {
         final int plane = nx * ny;
         // x and y passes: one block per z-slice.
         Parallel.forEachBlock(nz, work, k -> {
-            double[] line = new double[Math.max(nx, ny)];
+            double[] buf = new double[plane];
+            double[] acc = new double[nx];
             int base = k * plane;
+            for (int q = 0; q < plane; q++) {
+                buf[q] = c[base + q];
+            }
             if (nx > 1) {
+                double[] line = new double[nx];
                 for (int j = 0; j < ny; j++) {
-                    int r = base + j * nx;
-                    for (int i = 0; i < nx; i++) {
-                        line[i] = c[r + i];
-                    }
+                    System.arraycopy(buf, j * nx, line, 0, nx);
                     filterLine(line, nx);
-                    for (int i = 0; i < nx; i++) {
-                        c[r + i] = (float) line[i];
-                    }
+                    System.arraycopy(line, 0, buf, j * nx, nx);
                 }
             }
-            if (ny > 1) {
-                for (int i = 0; i < nx; i++) {
-                    for (int j = 0; j < ny; j++) {
-                        line[j] = c[base + i + j * nx];
-                    }
-                    filterLine(line, ny);
-                    for (int j = 0; j < ny; j++) {
-                        c[base + i + j * nx] = (float) line[j];
-                    }
-                }
+            filterLines(buf, ny, nx, acc);
+            for (int q = 0; q < plane; q++) {
+                c[base + q] = (float) buf[q];
             }
         });
         if (nz > 1) {
-            // z pass: one block per y-row; columns along z for all i of the row at once.
+            // z pass: one block per y-row; the nz rows of nx values of that row, filtered together.
             Parallel.forEachBlock(ny, work, j -> {
-                double[] line = new double[nz];
-                for (int i = 0; i < nx; i++) {
-                    int b = i + j * nx;
-                    for (int k = 0; k < nz; k++) {
-                        line[k] = c[b + k * plane];
+                double[] buf = new double[nz * nx];
+                double[] acc = new double[nx];
+                int b = j * nx;
+                for (int k = 0; k < nz; k++) {
+                    int src = b + k * plane;
+                    int dst = k * nx;
+                    for (int i = 0; i < nx; i++) {
+                        buf[dst + i] = c[src + i];
                     }
-                    filterLine(line, nz);
-                    for (int k = 0; k < nz; k++) {
-                        c[b + k * plane] = (float) line[k];
+                }
+                filterLines(buf, nz, nx, acc);
+                for (int k = 0; k < nz; k++) {
+                    int dst = b + k * plane;
+                    int src = k * nx;
+                    for (int i = 0; i < nx; i++) {
+                        c[dst + i] = (float) buf[src + i];
                     }
                 }
             });

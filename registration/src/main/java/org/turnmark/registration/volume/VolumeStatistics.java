@@ -144,98 +144,116 @@ public final class VolumeStatistics {
             var += ss[b];
         }
         double[] levels = percentiles.clone();
-        double[] vals = new double[levels.length];
+        // Ranks needed by all levels, answered together so histogram passes are shared.
+        long[] ranks = new long[2 * levels.length];
         for (int t = 0; t < levels.length; t++) {
             double h = (count - 1) * levels[t] / 100.0;
             long r = (long) Math.floor(h);
-            double frac = h - r;
-            double a = orderStatistic(data, mask, r, mn, mx);
-            vals[t] = frac > 0 ? a + frac * (orderStatistic(data, mask, r + 1, mn, mx) - a) : a;
+            ranks[2 * t] = r;
+            ranks[2 * t + 1] = Math.min(count - 1, r + 1);
+        }
+        long[] sorted = Arrays.stream(ranks).distinct().sorted().toArray();
+        double[] stat = new double[sorted.length];
+        select(data, mask, sorted, 0, sorted.length, mn, mx, 0, stat);
+        double[] vals = new double[levels.length];
+        for (int t = 0; t < levels.length; t++) {
+            double h = (count - 1) * levels[t] / 100.0;
+            double frac = h - Math.floor(h);
+            double a = stat[Arrays.binarySearch(sorted, ranks[2 * t])];
+            double b = stat[Arrays.binarySearch(sorted, ranks[2 * t + 1])];
+            vals[t] = frac > 0 ? a + frac * (b - a) : a;
         }
         return new VolumeStatistics(count, mn, mx, mean, Math.sqrt(var / count), levels, vals);
     }
 
     /**
-     * The value of rank {@code rank} (0-based) among the selected values, all of which lie in
-     * [min, max].
+     * Finds the order statistics of ranks {@code ranks[from..to)} (sorted, 0-based) among the selected
+     * values; all selected values of those ranks lie in [lo, hi] and {@code below} selected values are
+     * smaller than lo. Results go to {@code out[from..to)}.
      */
-    static double orderStatistic(float[] data, float[] mask, long rank, float min, float max) {
+    static void select(float[] data, float[] mask, long[] ranks, int from, int to, float lo, float hi, long below,
+                       double[] out) {
+        if (lo == hi) {
+            for (int t = from; t < to; t++) {
+                out[t] = lo;
+            }
+            return;
+        }
         final int n = data.length;
         final int nb = Parallel.blockCount(n, BLOCK);
-        float lo = min;
-        float hi = max;
-        long below = 0; // selected values < lo
-        while (true) {
-            if (lo == hi) {
-                return lo;
-            }
-            final float l = lo;
-            final float u = hi;
-            final double scale = BINS / ((double) u - l);
-            final int[][] hist = new int[nb][];
-            final float[][] bmin = new float[nb][];
-            final float[][] bmax = new float[nb][];
-            Parallel.forEachBlock(nb, n, b -> {
-                int[] h = new int[BINS];
-                float[] bl = new float[BINS];
-                float[] bu = new float[BINS];
-                Arrays.fill(bl, Float.POSITIVE_INFINITY);
-                Arrays.fill(bu, Float.NEGATIVE_INFINITY);
-                int from = b * BLOCK;
-                int to = Math.min(n, from + BLOCK);
-                for (int q = from; q < to; q++) {
-                    float v = data[q];
-                    if ((mask == null || mask[q] != 0) && v >= l && v <= u) {
-                        // Monotone in v, so every bin is a contiguous value range.
-                        int bin = Math.min(BINS - 1, (int) ((v - (double) l) * scale));
-                        h[bin]++;
-                        bl[bin] = Math.min(bl[bin], v);
-                        bu[bin] = Math.max(bu[bin], v);
+        final float l = lo;
+        final float u = hi;
+        final double scale = BINS / ((double) u - l);
+        final int[][] hist = new int[nb][];
+        final float[][] bmin = new float[nb][];
+        final float[][] bmax = new float[nb][];
+        Parallel.forEachBlock(nb, n, b -> {
+            int[] h = new int[BINS];
+            float[] bl = new float[BINS];
+            float[] bu = new float[BINS];
+            Arrays.fill(bl, Float.POSITIVE_INFINITY);
+            Arrays.fill(bu, Float.NEGATIVE_INFINITY);
+            int start = b * BLOCK;
+            int end = Math.min(n, start + BLOCK);
+            for (int q = start; q < end; q++) {
+                float v = data[q];
+                if (v >= l && v <= u && (mask == null || mask[q] != 0)) {
+                    // Monotone in v, so every bin holds a contiguous value range.
+                    int bin = Math.min(BINS - 1, (int) ((v - (double) l) * scale));
+                    h[bin]++;
+                    if (v < bl[bin]) {
+                        bl[bin] = v;
+                    }
+                    if (v > bu[bin]) {
+                        bu[bin] = v;
                     }
                 }
-                hist[b] = h;
-                bmin[b] = bl;
-                bmax[b] = bu;
-            });
-            long cum = below;
-            int found = -1;
-            long inBin = 0;
-            for (int bin = 0; bin < BINS; bin++) {
-                long c = 0;
-                for (int b = 0; b < nb; b++) {
-                    c += hist[b][bin];
-                }
-                if (rank < cum + c) {
-                    found = bin;
-                    inBin = c;
-                    break;
-                }
-                cum += c;
             }
-            if (found < 0) {
-                throw new IllegalStateException("rank " + rank + " beyond the " + cum + " selected values");
-            }
-            float newLo = Float.POSITIVE_INFINITY;
-            float newHi = Float.NEGATIVE_INFINITY;
+            hist[b] = h;
+            bmin[b] = bl;
+            bmax[b] = bu;
+        });
+        long cum = below;
+        int t = from;
+        for (int bin = 0; bin < BINS && t < to; bin++) {
+            long c = 0;
             for (int b = 0; b < nb; b++) {
-                newLo = Math.min(newLo, bmin[b][found]);
-                newHi = Math.max(newHi, bmax[b][found]);
+                c += hist[b][bin];
             }
-            below = cum;
-            if (inBin <= SORT_LIMIT) {
-                float[] vals = new float[(int) inBin];
-                int w = 0;
-                for (int q = 0; q < n; q++) {
-                    float v = data[q];
-                    if ((mask == null || mask[q] != 0) && v >= newLo && v <= newHi) {
-                        vals[w++] = v;
-                    }
+            int first = t;
+            while (t < to && ranks[t] < cum + c) {
+                t++;
+            }
+            if (t > first) {
+                float newLo = Float.POSITIVE_INFINITY;
+                float newHi = Float.NEGATIVE_INFINITY;
+                for (int b = 0; b < nb; b++) {
+                    newLo = Math.min(newLo, bmin[b][bin]);
+                    newHi = Math.max(newHi, bmax[b][bin]);
                 }
-                Arrays.sort(vals);
-                return vals[(int) (rank - below)];
+                if (c <= SORT_LIMIT || newLo == newHi) {
+                    float[] vals = new float[newLo == newHi ? 0 : (int) c];
+                    if (newLo != newHi) {
+                        int w = 0;
+                        for (int q = 0; q < n; q++) {
+                            float v = data[q];
+                            if (v >= newLo && v <= newHi && (mask == null || mask[q] != 0)) {
+                                vals[w++] = v;
+                            }
+                        }
+                        Arrays.sort(vals);
+                    }
+                    for (int r = first; r < t; r++) {
+                        out[r] = newLo == newHi ? newLo : vals[(int) (ranks[r] - cum)];
+                    }
+                } else {
+                    select(data, mask, ranks, first, t, newLo, newHi, cum, out);
+                }
             }
-            lo = newLo;
-            hi = newHi;
+            cum += c;
+        }
+        if (t < to) {
+            throw new IllegalStateException("rank " + ranks[t] + " beyond the " + cum + " selected values");
         }
     }
 
