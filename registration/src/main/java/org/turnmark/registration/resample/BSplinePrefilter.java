@@ -121,18 +121,17 @@ final class BSplinePrefilter {
         final int plane = nx * ny;
         // x and y passes: one block per z-slice.
         Parallel.forEachBlock(nz, work, k -> {
-            double[] buf = new double[plane];
-            double[] acc = new double[nx];
+            double[] buf = Scratch.get(0, plane);
+            double[] acc = Scratch.get(1, Math.max(nx, ny));
             int base = k * plane;
             for (int q = 0; q < plane; q++) {
                 buf[q] = c[base + q];
             }
             if (nx > 1) {
-                double[] line = new double[nx];
                 for (int j = 0; j < ny; j++) {
-                    System.arraycopy(buf, j * nx, line, 0, nx);
-                    filterLine(line, nx);
-                    System.arraycopy(line, 0, buf, j * nx, nx);
+                    System.arraycopy(buf, j * nx, acc, 0, nx);
+                    filterLine(acc, nx);
+                    System.arraycopy(acc, 0, buf, j * nx, nx);
                 }
             }
             filterLines(buf, ny, nx, acc);
@@ -143,8 +142,8 @@ final class BSplinePrefilter {
         if (nz > 1) {
             // z pass: one block per y-row; the nz rows of nx values of that row, filtered together.
             Parallel.forEachBlock(ny, work, j -> {
-                double[] buf = new double[nz * nx];
-                double[] acc = new double[nx];
+                double[] buf = Scratch.get(0, nz * nx);
+                double[] acc = Scratch.get(1, nx);
                 int b = j * nx;
                 for (int k = 0; k < nz; k++) {
                     int src = b + k * plane;

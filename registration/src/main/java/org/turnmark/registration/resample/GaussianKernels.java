@@ -50,7 +50,7 @@ final class GaussianKernels {
         final int r = w.length - 1;
         final int plane = nx * ny;
         Parallel.forEachBlock(nz, (long) plane * nz * (r + 1), k -> {
-            double[] buf = new double[nx + 2 * r];
+            double[] buf = Scratch.get(0, nx + 2 * r);
             for (int j = 0; j < ny; j++) {
                 int row = nx * j + plane * k;
                 for (int p = 0; p < nx + 2 * r; p++) {
@@ -74,8 +74,8 @@ final class GaussianKernels {
         final int plane = nx * ny;
         Parallel.forEachBlock(nz, (long) plane * nz * (r + 1), k -> {
             int len = ny + 2 * r;
-            double[] buf = new double[len * nx];
-            double[] acc = new double[nx];
+            double[] buf = Scratch.get(0, len * nx);
+            double[] acc = Scratch.get(1, nx);
             int base = plane * k;
             for (int p = 0; p < len; p++) {
                 int src = base + nx * reflect(p - r, ny);
@@ -94,8 +94,8 @@ final class GaussianKernels {
         final int plane = nx * ny;
         Parallel.forEachBlock(ny, (long) plane * nz * (r + 1), j -> {
             int len = nz + 2 * r;
-            double[] buf = new double[len * nx];
-            double[] acc = new double[nx];
+            double[] buf = Scratch.get(0, len * nx);
+            double[] acc = Scratch.get(1, nx);
             int base = nx * j;
             for (int p = 0; p < len; p++) {
                 int src = base + plane * reflect(p - r, nz);

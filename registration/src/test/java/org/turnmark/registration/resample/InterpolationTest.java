@@ -285,4 +285,50 @@ class InterpolationTest {
         assertEquals(2.5, Interpolation.cubic(c, nx, ny, nz, 3.3, 1.2, 0.7, Outside.FAIL, 0), FLOAT_COEFFICIENT_TOLERANCE);
         assertEquals(2.5, Interpolation.cubic(c, nx, ny, nz, 20, 2, 0, Outside.FAIL, 0), FLOAT_COEFFICIENT_TOLERANCE);
     }
+
+    @Test
+    void parallelPrefilterEqualsSequentialLineByLineLoopBitForBit() {
+        // Above Parallel's threshold, so the blocks may run on several threads.
+        int nx = 41;
+        int ny = 37;
+        int nz = 29;
+        float[] d = random(nx * ny * nz, 77);
+        float[] par = Interpolation.bsplineCoefficients(d, nx, ny, nz);
+        // Sequential reference: x then y lines of each slice in double, rounded to float, then z lines.
+        float[] seq = d.clone();
+        int plane = nx * ny;
+        double[] line = new double[Math.max(nx, Math.max(ny, nz))];
+        for (int k = 0; k < nz; k++) {
+            double[] s = new double[plane];
+            for (int q = 0; q < plane; q++) {
+                s[q] = seq[k * plane + q];
+            }
+            for (int j = 0; j < ny; j++) {
+                System.arraycopy(s, j * nx, line, 0, nx);
+                BSplinePrefilter.filterLine(line, nx);
+                System.arraycopy(line, 0, s, j * nx, nx);
+            }
+            for (int i = 0; i < nx; i++) {
+                for (int j = 0; j < ny; j++) {
+                    line[j] = s[i + j * nx];
+                }
+                BSplinePrefilter.filterLine(line, ny);
+                for (int j = 0; j < ny; j++) {
+                    seq[k * plane + i + j * nx] = (float) line[j];
+                }
+            }
+        }
+        for (int j = 0; j < ny; j++) {
+            for (int i = 0; i < nx; i++) {
+                for (int k = 0; k < nz; k++) {
+                    line[k] = seq[i + j * nx + k * plane];
+                }
+                BSplinePrefilter.filterLine(line, nz);
+                for (int k = 0; k < nz; k++) {
+                    seq[i + j * nx + k * plane] = (float) line[k];
+                }
+            }
+        }
+        org.junit.jupiter.api.Assertions.assertArrayEquals(seq, par);
+    }
 }
