@@ -183,6 +183,15 @@ final class SamplingKernels {
         double wz1 = w1(tz);
         double wz2 = w2(tz);
         double wz3 = w3(tz);
+        final int plane = nx * ny;
+        if (i >= 1 && j >= 1 && k >= 1 && i + 2 < nx && j + 2 < ny && k + 2 < nz) {
+            // Interior: the 4×4×4 support needs no mirroring; walk it from its first corner.
+            int b = (i - 1) + nx * ((j - 1) + ny * (k - 1));
+            return wz0 * planeAt(c, b, nx, wx0, wx1, wx2, wx3, wy0, wy1, wy2, wy3)
+                    + wz1 * planeAt(c, b + plane, nx, wx0, wx1, wx2, wx3, wy0, wy1, wy2, wy3)
+                    + wz2 * planeAt(c, b + 2 * plane, nx, wx0, wx1, wx2, wx3, wy0, wy1, wy2, wy3)
+                    + wz3 * planeAt(c, b + 3 * plane, nx, wx0, wx1, wx2, wx3, wy0, wy1, wy2, wy3);
+        }
         int ix0 = mirror(i - 1, nx);
         int ix1 = mirror(i, nx);
         int ix2 = mirror(i + 1, nx);
@@ -191,7 +200,6 @@ final class SamplingKernels {
         int jy1 = nx * mirror(j, ny);
         int jy2 = nx * mirror(j + 1, ny);
         int jy3 = nx * mirror(j + 2, ny);
-        int plane = nx * ny;
         int kz0 = plane * mirror(k - 1, nz);
         int kz1 = plane * mirror(k, nz);
         int kz2 = plane * mirror(k + 1, nz);
@@ -201,6 +209,16 @@ final class SamplingKernels {
         double s2 = plane(c, kz2, jy0, jy1, jy2, jy3, ix0, ix1, ix2, ix3, wx0, wx1, wx2, wx3, wy0, wy1, wy2, wy3);
         double s3 = plane(c, kz3, jy0, jy1, jy2, jy3, ix0, ix1, ix2, ix3, wx0, wx1, wx2, wx3, wy0, wy1, wy2, wy3);
         return wz0 * s0 + wz1 * s1 + wz2 * s2 + wz3 * s3;
+    }
+
+    private static double planeAt(float[] c, int b, int nx, double wx0, double wx1, double wx2, double wx3,
+                                  double wy0, double wy1, double wy2, double wy3) {
+        return wy0 * (wx0 * c[b] + wx1 * c[b + 1] + wx2 * c[b + 2] + wx3 * c[b + 3])
+                + wy1 * (wx0 * c[b + nx] + wx1 * c[b + nx + 1] + wx2 * c[b + nx + 2] + wx3 * c[b + nx + 3])
+                + wy2 * (wx0 * c[b + 2 * nx] + wx1 * c[b + 2 * nx + 1] + wx2 * c[b + 2 * nx + 2]
+                        + wx3 * c[b + 2 * nx + 3])
+                + wy3 * (wx0 * c[b + 3 * nx] + wx1 * c[b + 3 * nx + 1] + wx2 * c[b + 3 * nx + 2]
+                        + wx3 * c[b + 3 * nx + 3]);
     }
 
     private static double plane(float[] c, int kb, int jy0, int jy1, int jy2, int jy3,

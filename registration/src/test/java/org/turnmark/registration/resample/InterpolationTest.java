@@ -331,4 +331,33 @@ class InterpolationTest {
         }
         org.junit.jupiter.api.Assertions.assertArrayEquals(seq, par);
     }
+
+    @Test
+    void pointSamplingAllocatesNothing() {
+        int nx = 9;
+        int ny = 8;
+        int nz = 7;
+        float[] d = random(nx * ny * nz, 3);
+        float[] c = Interpolation.bsplineCoefficients(d, nx, ny, nz);
+        com.sun.management.ThreadMXBean mx =
+                (com.sun.management.ThreadMXBean) java.lang.management.ManagementFactory.getThreadMXBean();
+        double sink = 0;
+        for (int warm = 0; warm < 2; warm++) {
+            long before = mx.getCurrentThreadAllocatedBytes();
+            for (int t = 0; t < 100_000; t++) {
+                double x = (t % 97) * 0.1 - 0.5;
+                double y = (t % 89) * 0.08;
+                double z = (t % 83) * 0.075;
+                sink += Interpolation.nearest(d, nx, ny, nz, x, y, z, Outside.CLAMP, 0)
+                        + Interpolation.linear(d, nx, ny, nz, x, y, z, Outside.CONSTANT, 0)
+                        + Interpolation.cubic(c, nx, ny, nz, x, y, z, Outside.CLAMP, 0);
+            }
+            long allocated = mx.getCurrentThreadAllocatedBytes() - before;
+            if (warm == 1) {
+                // 300 000 samples: any per-sample allocation (boxing, arrays) would be >= 4.8 MB.
+                assertTrue(allocated < 64 * 1024, "sampling allocated " + allocated + " bytes");
+            }
+        }
+        assertTrue(Double.isFinite(sink));
+    }
 }
