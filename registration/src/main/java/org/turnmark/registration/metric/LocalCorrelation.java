@@ -30,6 +30,11 @@ public final class LocalCorrelation implements SimilarityMetric {
 
     /** Window variance (in normalised intensity², range = 1) below which a window counts as flat. */
     public static final double FLAT_VARIANCE = 1e-6;
+    /**
+     * Smallest window half-width in voxels per axis: a 3-voxel window has too few samples for a
+     * stable correlation (common practice), which matters at coarse pyramid levels.
+     */
+    public static final int MIN_RADIUS_VOXELS = 2;
     /** Windows with less than this fraction of their full weight inside the mask are skipped. */
     public static final double MIN_WINDOW_FRACTION = 0.25;
 
@@ -55,7 +60,7 @@ public final class LocalCorrelation implements SimilarityMetric {
 
     /**
      * @param grid         the grid all arrays live on
-     * @param radiusMm     window half-width in mm (&gt; 0); per axis rounded to whole voxels, ≥ 1
+     * @param radiusMm     window half-width in mm (&gt; 0); per axis rounded to whole voxels, at least {@link #MIN_RADIUS_VOXELS}
      * @param window       box or Gaussian weights
      * @param fixedRange   intensity range of the fixed image
      * @param movingRange  intensity range of the moving image
@@ -67,9 +72,9 @@ public final class LocalCorrelation implements SimilarityMetric {
         }
         this.grid = grid;
         this.window = window;
-        this.rx = Math.max(1, (int) Math.round(radiusMm / grid.spacingMm(0)));
-        this.ry = Math.max(1, (int) Math.round(radiusMm / grid.spacingMm(1)));
-        this.rz = Math.max(1, (int) Math.round(radiusMm / grid.spacingMm(2)));
+        this.rx = Math.max(MIN_RADIUS_VOXELS, (int) Math.round(radiusMm / grid.spacingMm(0)));
+        this.ry = Math.max(MIN_RADIUS_VOXELS, (int) Math.round(radiusMm / grid.spacingMm(1)));
+        this.rz = Math.max(MIN_RADIUS_VOXELS, (int) Math.round(radiusMm / grid.spacingMm(2)));
         this.sigmaMm = radiusMm / 2;
         this.fullWeight = window == LnccWindow.BOX ? (2.0 * rx + 1) * (2.0 * ry + 1) * (2.0 * rz + 1) : 1.0;
         this.f0 = fixedRange.min();

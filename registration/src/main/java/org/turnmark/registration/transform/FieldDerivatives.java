@@ -9,8 +9,9 @@ import org.turnmark.geom.Grid3;
  * {@code grid.worldToVoxel()}. Exact for fields that are affine in x, second-order accurate otherwise.
  *
  * <p>Immutable after construction; safe for concurrent use (callers pass their own output).
+ * Allocation-free per call.
  */
-final class FieldDerivatives {
+public final class FieldDerivatives {
 
     private final int nx;
     private final int ny;
@@ -25,7 +26,8 @@ final class FieldDerivatives {
     private final double w21;
     private final double w22;
 
-    FieldDerivatives(Grid3 grid) {
+    /** Derivative operator for arrays on {@code grid}. */
+    public FieldDerivatives(Grid3 grid) {
         this.nx = grid.nx();
         this.ny = grid.ny();
         this.nz = grid.nz();
@@ -46,7 +48,7 @@ final class FieldDerivatives {
      *
      * @param d output, length ≥ 9; overwritten
      */
-    void jacobian(float[] fx, float[] fy, float[] fz, int i, int j, int k, double[] d) {
+    public void jacobian(float[] fx, float[] fy, float[] fz, int i, int j, int k, double[] d) {
         int n = i + nx * (j + ny * k);
         // Index steps and divisors for the difference along each voxel axis (0 on a 1-voxel axis).
         int im = i > 0 ? n - 1 : n;
@@ -81,7 +83,7 @@ final class FieldDerivatives {
      * World-mm gradient of a scalar array at voxel (i, j, k) into {@code g[0..2]}; same stencil as
      * {@link #jacobian}.
      */
-    void gradient(float[] f, int i, int j, int k, double[] g) {
+    public void gradient(float[] f, int i, int j, int k, double[] g) {
         int n = i + nx * (j + ny * k);
         int im = i > 0 ? n - 1 : n;
         int ip = i < nx - 1 ? n + 1 : n;

@@ -69,11 +69,11 @@ class MetricValueTest {
         for (int n = 0; n < mask.length; n += 4) {
             mask[n] = 0;
         }
-        LocalCorrelation m = new LocalCorrelation(GRID, 2.0, LnccWindow.BOX, IntensityRange.of(f, null, "f"),
+        LocalCorrelation m = new LocalCorrelation(GRID, 3.0, LnccWindow.BOX, IntensityRange.of(f, null, "f"),
                 IntensityRange.of(w, null, "w"));
         int[] r = m.radiusVoxels();
-        assertEquals(2, r[0]);
-        assertEquals(1, r[2], "2 mm window on 2 mm slices is one voxel");
+        assertEquals(3, r[0]);
+        assertEquals(LocalCorrelation.MIN_RADIUS_VOXELS, r[2], "3 mm on 2 mm slices rounds to 2 voxels");
         assertEquals(naiveLncc(f, w, mask, r[0], r[1], r[2]), m.cost(f, w, mask), NAIVE_TOL);
     }
 
