@@ -44,13 +44,7 @@ public final class Grids {
                 col[4 * r + c] = a[4 * r + c] / s * spacingMm;
             }
         }
-        double[] centre = centreMm(g);
-        for (int r = 0; r < 3; r++) {
-            // origin = centre - A' · ((m-1)/2)
-            col[4 * r + 3] = centre[r] - col[4 * r] * (m[0] - 1) / 2.0 - col[4 * r + 1] * (m[1] - 1) / 2.0
-                    - col[4 * r + 2] * (m[2] - 1) / 2.0;
-        }
-        return new Grid3(m[0], m[1], m[2], Affine3D.fromRowMajor(col));
+        return centredOn(m, col, centreMm(g));
     }
 
     /**
@@ -64,5 +58,42 @@ public final class Grids {
                 .compose(Affine3D.rotation(ax, ay, az, angleRad))
                 .compose(Affine3D.translation(-c[0], -c[1], -c[2]));
         return new Grid3(g.nx(), g.ny(), g.nz(), r.compose(g.voxelToWorld()));
+    }
+
+    /**
+     * A grid with every spacing multiplied by {@code factor} (e.g. 2 for the next coarser level of a
+     * pyramid, 0.5 for a finer one) covering the same field of view: same voxel-axis directions,
+     * {@code max(1, round(n/factor))} voxels per axis, centred on the same world point.
+     *
+     * @throws IllegalArgumentException if factor is not finite and &gt; 0
+     */
+    public static Grid3 rescaled(Grid3 g, double factor) {
+        if (!(factor > 0) || Double.isInfinite(factor)) {
+            throw new IllegalArgumentException("scale factor must be finite and > 0, got " + factor);
+        }
+        int[] n = {g.nx(), g.ny(), g.nz()};
+        int[] m = new int[3];
+        double[] a = g.voxelToWorld().toRowMajor();
+        double[] col = new double[12];
+        for (int c = 0; c < 3; c++) {
+            long count = Math.round(n[c] / factor);
+            if (count > Integer.MAX_VALUE) {
+                throw new IllegalArgumentException("rescaled grid would have " + count + " voxels along axis " + c);
+            }
+            m[c] = (int) Math.max(1, count);
+            for (int r = 0; r < 3; r++) {
+                col[4 * r + c] = a[4 * r + c] * factor;
+            }
+        }
+        return centredOn(m, col, centreMm(g));
+    }
+
+    /** Grid with linear part {@code col} whose voxel ((m-1)/2) maps to {@code centre}: origin = centre − A·(m−1)/2. */
+    private static Grid3 centredOn(int[] m, double[] col, double[] centre) {
+        for (int r = 0; r < 3; r++) {
+            col[4 * r + 3] = centre[r] - col[4 * r] * (m[0] - 1) / 2.0 - col[4 * r + 1] * (m[1] - 1) / 2.0
+                    - col[4 * r + 2] * (m[2] - 1) / 2.0;
+        }
+        return new Grid3(m[0], m[1], m[2], Affine3D.fromRowMajor(col));
     }
 }

@@ -153,4 +153,21 @@ public final class Resampler {
             }
         });
     }
+
+    /**
+     * Resamples a vector field (for example a displacement or velocity field between pyramid levels)
+     * onto {@code target}: each component is sampled at the world position of the target voxel
+     * centres (no affine, no displacement). Components are world-mm vectors, so they are not
+     * rescaled or rotated. Returns a new field; {@code field} is not modified.
+     */
+    public static VectorField resample(VectorField field, Grid3 target, Interp kind, Outside policy) {
+        Grid3 g = field.grid();
+        float[][] out = new float[3][];
+        for (int c = 0; c < 3; c++) {
+            float[] src = Interpolation.prepare(kind, field.component(c), g.nx(), g.ny(), g.nz());
+            out[c] = new float[target.size()];
+            resampleInto(src, g, target, null, null, kind, policy, 0.0, out[c]);
+        }
+        return new VectorField(target, out[0], out[1], out[2]);
+    }
 }

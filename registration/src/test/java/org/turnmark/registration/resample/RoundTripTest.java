@@ -31,6 +31,12 @@ class RoundTripTest {
     /** Centre-of-FOV and spacing arithmetic in double on 40-voxel grids: round-off ~1e-13 mm. */
     private static final double GRID_TOLERANCE_MM = 1e-9;
 
+    /**
+     * Field components O(10 mm) stored as float (2^-24 relative, ~1e-6 mm) and interpolated from
+     * float corners: 1e-5 mm leaves a 10× margin.
+     */
+    private static final double FIELD_FLOAT_TOLERANCE_MM = 1e-5;
+
     private static Volume blob(Grid3 g, double[] centre) {
         float[] d = new float[g.size()];
         for (int k = 0; k < g.nz(); k++) {
@@ -116,5 +122,39 @@ class RoundTripTest {
             }
         }
         assertTrue(max <= LINEAR_ROUND_TRIP_BOUND / 2, "single trilinear resampling error " + max);
+    }
+
+    @Test
+    void rescaledGridHalvesDimensionsAndResampledLinearFieldIsExact() {
+        Grid3 g = new Grid3(40, 31, 20, Affine3D.translation(3, -2, 7).compose(Affine3D.rotation(0, 0, 1, 0.3))
+                .compose(Affine3D.scaling(0.8, 0.8, 1.5)));
+        Grid3 coarse = Grids.rescaled(g, 2.0);
+        assertEquals(20, coarse.nx());
+        assertEquals(16, coarse.ny()); // round(15.5) = 16 (Math.round rounds halves up)
+        assertEquals(10, coarse.nz());
+        assertEquals(3.0, coarse.spacingMm(2), GRID_TOLERANCE_MM);
+        assertArrayEquals(Grids.centreMm(g), Grids.centreMm(coarse), GRID_TOLERANCE_MM);
+        // A field linear in world position is reproduced exactly by trilinear interpolation
+        // (closed form) wherever the coarse centres lie inside the fine grid.
+        org.turnmark.registration.volume.VectorField u = org.turnmark.registration.volume.VectorField.zeros(coarse);
+        for (int q = 0; q < coarse.size(); q++) {
+            double[] w = coarse.worldOf(q % 20, (q / 20) % 16, q / 320);
+            u.x()[q] = (float) (0.1 * w[0] - 0.05 * w[2]);
+            u.y()[q] = (float) (0.02 * w[1] + 1);
+            u.z()[q] = (float) (-0.03 * w[0]);
+        }
+        org.turnmark.registration.volume.VectorField fine = Resampler.resample(u, g, Interp.LINEAR, Outside.CLAMP);
+        int checked = 0;
+        for (int q = 0; q < g.size(); q++) {
+            double[] w = g.worldOf(q % 40, (q / 40) % 31, q / (40 * 31));
+            double[] v = coarse.worldToVoxel().applyPoint(w[0], w[1], w[2]);
+            if (v[0] >= 0 && v[1] >= 0 && v[2] >= 0 && v[0] <= 19 && v[1] <= 15 && v[2] <= 9) {
+                assertEquals(0.1 * w[0] - 0.05 * w[2], fine.x()[q], FIELD_FLOAT_TOLERANCE_MM);
+                assertEquals(0.02 * w[1] + 1, fine.y()[q], FIELD_FLOAT_TOLERANCE_MM);
+                assertEquals(-0.03 * w[0], fine.z()[q], FIELD_FLOAT_TOLERANCE_MM);
+                checked++;
+            }
+        }
+        assertTrue(checked > g.size() / 3, "most fine voxels must be checked, got " + checked);
     }
 }
