@@ -5,7 +5,11 @@ import java.util.Locale;
 import org.turnmark.geom.Affine3D;
 import org.turnmark.geom.Grid3;
 import org.turnmark.geom.Parallel;
+import org.turnmark.registration.resample.Interp;
+import org.turnmark.registration.resample.Outside;
+import org.turnmark.registration.resample.Resampler;
 import org.turnmark.registration.volume.VectorField;
+import org.turnmark.registration.volume.Volume;
 
 /**
  * Operations on dense displacement fields. A displacement field {@code u} on a grid represents the
@@ -101,6 +105,17 @@ public final class DisplacementFields {
         out[0] = pointRasMm[0] + s[0];
         out[1] = pointRasMm[1] + s[1];
         out[2] = pointRasMm[2] + s[2];
+    }
+
+    /**
+     * Applies the map to an image: {@code W(x) = M(x + u(x))} on u's grid, trilinear through world
+     * coordinates; points outside the moving grid get 0.
+     *
+     * @param moving the image to warp, on any grid; not modified
+     * @return a new volume on u's grid
+     */
+    public static Volume warp(Volume moving, VectorField u) {
+        return Resampler.resample(moving, u.grid(), null, u, Interp.LINEAR, Outside.CONSTANT, 0);
     }
 
     /**
