@@ -10,5 +10,6 @@ final class Commands {
 
     static void register(CommandLine cl) {
         // Each subcommand is added here as it is built.
+        cl.addSubcommand(new RegisterCommand());
     }
 }
