@@ -10,7 +10,8 @@ nibabel/LICENSE-nibabel.txt), (2) writes small synthetic files with nibabel into
 nibabel ships none of (scaling, sform only, qform only with qfac -1, every readable datatype, an
 unsupported datatype, header extensions, .hdr/.img pairs, a displacement field, units), and
 (3) writes expected.json: for each file the values nibabel itself reports (shape, affine, datatype,
-sum/min/max of frame 0 and a few voxels), or the error Turnmark must raise. Affines are nibabel's
+sum/min/max of frame 0 and a few voxels), or the error Turnmark must raise, and (4) copies the small valid files into the fuzz test's
+seed corpus (../org/turnmark/registration/nifti/NiftiReaderFuzzTestInputs/). Affines are nibabel's
 `img.affine` except where noted ('affine_source'): nibabel ignores xyzt_units and uses an ANALYZE
 style base affine when no transform is set, and for the small-quaternion case the reference C
 library (nifti_tool -disp_nim qto_xyz) is the reference.
@@ -224,7 +225,7 @@ img = nib.Nifti1Pair(RNG.normal(0, 3, size=shape).astype(np.float32), aff)
 nib.save(img, made('pair.hdr'))
 record('made/pair.hdr', made('pair.hdr'), transform='sform')
 shutil.copyfile(made('pair.hdr'), made('pairgz.hdr'))
-with open(made('pair.img'), 'rb') as src, gzip.open(made('pairgz.img.gz'), 'wb') as dst:
+with open(made('pair.img'), 'rb') as src, gzip.GzipFile(made('pairgz.img.gz'), 'wb', mtime=0) as dst:
     dst.write(src.read())
 expected['made/pairgz.hdr'] = dict(expected['made/pair.hdr'], file='made/pairgz.hdr')
 
@@ -256,6 +257,16 @@ expected['made/dispfield.nii.gz'] = {
     'voxels': [{'ijk': [1, 2, 0], 'vector': comp[1, 2, 0, 0, :].tolist()},
                {'ijk': [4, 3, 2], 'vector': comp[4, 3, 2, 0, :].tolist()}],
 }
+
+# ---------------------------------------------------------------------------------------------
+# 3. seed corpus of the fuzz test: small valid files of every kind the reader accepts
+SEEDS = os.path.join(HERE, '..', 'org', 'turnmark', 'registration', 'nifti', 'NiftiReaderFuzzTestInputs',
+                     'readerRaisesOnlyItsOwnError')
+os.makedirs(SEEDS, exist_ok=True)
+for f in ['big_endian_scaled.nii', 'scaled_uint8.nii.gz', 'sform_only.nii.gz', 'qform_qfac_neg.nii',
+          'qform_small_a.nii', 'units_um.nii', 'type_int8.nii', 'type_uint16.nii', 'type_uint32.nii',
+          'type_float64.nii', 'with_extension.nii', 'dispfield.nii.gz']:
+    shutil.copyfile(made(f), os.path.join(SEEDS, 'seed-' + f))
 
 with open(os.path.join(HERE, 'expected.json'), 'w') as f:
     json.dump(expected, f, indent=1, sort_keys=True)
