@@ -1,0 +1,102 @@
+package org.turnmark.app.pipeline;
+
+import java.util.List;
+import java.util.Locale;
+
+import org.turnmark.registration.diffeo.RegistrationResult;
+import org.turnmark.registration.transform.JacobianStats;
+import org.turnmark.mechanics.solve.SolveResult;
+
+/**
+ * Quality checks of a plan, each turned into a flag in plain words with its numbers and units.
+ * Thresholds are public constants with their reasons. Stateless.
+ */
+final class QualityFlags {
+
+    /** det F below this in the supine reload means strong local compression worth a look (a 30 % volume loss). */
+    static final double LOW_DET_F = 0.7;
+    /** More than this fraction of failed uncertainty samples makes the ellipsoid doubtful. */
+    static final double MAX_FAILED_FRACTION = 0.25;
+
+    private QualityFlags() {
+    }
+
+    private static String f(String fmt, Object... args) {
+        return String.format(Locale.ROOT, fmt, args);
+    }
+
+    static void mechanics(List<PlanResult.QualityFlag> flags, MechanicsModel.Reference ref, SolveResult sup,
+                          int failedSamples, int samples) {
+        flags.add(new PlanResult.QualityFlag(PlanResult.QualityFlag.OK, "finite-element convergence",
+                f("reference state converged in %d iterations to %.2f mm; supine reload converged in %d load steps "
+                        + "(%d Newton iterations, relative residual %.1e)", ref.iterations(), ref.residualMm(),
+                        sup.loadSteps(), sup.newtonIterations(), sup.relativeResidual())));
+        double minDet = Math.min(ref.lastSolve().minDetF(), sup.minDetF());
+        flags.add(new PlanResult.QualityFlag(minDet < LOW_DET_F ? PlanResult.QualityFlag.WARNING : PlanResult.QualityFlag.OK,
+                "element distortion", f("smallest det F %.3f (prone %.3f, supine %.3f); %s", minDet,
+                        ref.lastSolve().minDetF(), sup.minDetF(), minDet < LOW_DET_F
+                                ? "strong local compression: check the mesh near the chest wall and the lesion"
+                                : "no element is strongly compressed")));
+        if (samples > 0) {
+            boolean bad = failedSamples > MAX_FAILED_FRACTION * samples;
+            flags.add(new PlanResult.QualityFlag(bad ? PlanResult.QualityFlag.PROBLEM
+                    : failedSamples > 0 ? PlanResult.QualityFlag.WARNING : PlanResult.QualityFlag.OK,
+                    "uncertainty samples", f("%d of %d prior samples solved%s", samples - failedSamples, samples,
+                            bad ? "; too many failed, the ellipsoids understate the uncertainty" : "")));
+        } else {
+            flags.add(new PlanResult.QualityFlag(PlanResult.QualityFlag.WARNING, "uncertainty",
+                    "no prior samples were requested: positions are given without ellipsoids"));
+        }
+    }
+
+    static void registration(List<PlanResult.QualityFlag> flags, String what, RegistrationResult r) {
+        double change = r.costInitial() == 0 ? 0 : (r.costFinal() - r.costInitial()) / Math.abs(r.costInitial()) * 100;
+        flags.add(new PlanResult.QualityFlag(r.improved() ? PlanResult.QualityFlag.OK : PlanResult.QualityFlag.WARNING,
+                what + " similarity", f("%s cost %.4g before, %.4g after (%+.1f %%, lower is better)%s",
+                        r.metric(), r.costInitial(), r.costFinal(), change,
+                        r.improved() ? "" : "; the registration could not improve on its start")));
+        JacobianStats j = r.jacobian();
+        boolean folds = j.percentNonPositive() > 0;
+        flags.add(new PlanResult.QualityFlag(folds ? PlanResult.QualityFlag.PROBLEM : PlanResult.QualityFlag.OK,
+                what + " folding", f("Jacobian determinant min %.3f, %.3f %% of voxels ≤ 0, SD of log det J %.3f%s",
+                        j.minDet(), j.percentNonPositive(), j.sdLogDet(), folds ? ": the map folds tissue" : "")));
+    }
+
+    /**
+     * Mechanics-only vs hybrid (both in the supine frame): the two disagree beyond their ellipsoids
+     * when the hybrid position lies outside the mechanics 95 % ellipsoid and vice versa.
+     */
+    static void disagreement(List<PlanResult.QualityFlag> flags, List<PlanResult.LesionResult> lesions) {
+        for (PlanResult.LesionResult l : lesions) {
+            PlanResult.Prediction m = null;
+            PlanResult.Prediction h = null;
+            for (PlanResult.Prediction p : l.predictions()) {
+                if (PlanResult.FRAME_SUPINE.equals(p.frame()) && PlanResult.MECHANICS.equals(p.method())) {
+                    m = p;
+                } else if (PlanResult.HYBRID.equals(p.method())) {
+                    h = p;
+                }
+            }
+            if (m == null || h == null) {
+                continue;
+            }
+            double[] a = m.positionRasMm();
+            double[] b = h.positionRasMm();
+            double d = Math.sqrt((a[0] - b[0]) * (a[0] - b[0]) + (a[1] - b[1]) * (a[1] - b[1])
+                    + (a[2] - b[2]) * (a[2] - b[2]));
+            if (m.covarianceMm2() == null || h.covarianceMm2() == null) {
+                flags.add(new PlanResult.QualityFlag(PlanResult.QualityFlag.OK, "method agreement",
+                        f("lesion %s: mechanics-only and hybrid differ by %.1f mm (no ellipsoids to compare)", l.id(), d)));
+                continue;
+            }
+            org.turnmark.app.uncertainty.Ellipsoid em = org.turnmark.app.uncertainty.Ellipsoid.of(a, m.covarianceMm2(), 0.95);
+            org.turnmark.app.uncertainty.Ellipsoid eh = org.turnmark.app.uncertainty.Ellipsoid.of(b, h.covarianceMm2(), 0.95);
+            boolean apart = !em.contains(b) && !eh.contains(a);
+            flags.add(new PlanResult.QualityFlag(apart ? PlanResult.QualityFlag.WARNING : PlanResult.QualityFlag.OK,
+                    "method agreement", f("lesion %s: mechanics-only and hybrid differ by %.1f mm; %s", l.id(), d,
+                            apart ? "each lies outside the other's 95 % ellipsoid: the methods disagree beyond their "
+                                    + "stated uncertainty, review the images"
+                                    : "within the 95 % ellipsoids")));
+        }
+    }
+}

@@ -1,0 +1,271 @@
+package org.turnmark.app.pipeline;
+
+import java.util.List;
+import java.util.Locale;
+import java.util.Map;
+
+import org.turnmark.geom.Affine3D;
+import org.turnmark.geom.Grid3;
+import org.turnmark.geom.Progress;
+import org.turnmark.mechanics.mesh.DenseDisplacement;
+import org.turnmark.mechanics.mesh.DisplacementFieldSampler;
+import org.turnmark.mechanics.mesh.PointMap;
+import org.turnmark.registration.diffeo.DiffeomorphicRegistration;
+import org.turnmark.registration.diffeo.PreAlignment;
+import org.turnmark.registration.diffeo.RegistrationConfig;
+import org.turnmark.registration.diffeo.RegistrationInput;
+import org.turnmark.registration.diffeo.RegistrationResult;
+import org.turnmark.registration.resample.Interp;
+import org.turnmark.registration.resample.Outside;
+import org.turnmark.registration.resample.Resampler;
+import org.turnmark.registration.transform.DisplacementFields;
+import org.turnmark.registration.volume.VectorField;
+import org.turnmark.registration.volume.Volume;
+
+/**
+ * The supine-image part of a plan.
+ *
+ * <ol>
+ *   <li>Rigid alignment T (supine image frame → prone image frame) of the supine image to the prone
+ *       image warped by the mechanics prediction (the predicted supine shape with the chest wall held
+ *       in place): torso and chest wall line up, the residual is what mechanics missed.</li>
+ *   <li>Hybrid: the residual diffeomorphic registration of the prone image (moving) to the supine
+ *       image (fixed), initialised with φ₀ = M⁻¹ ∘ T (M the mechanics prone → supine map), so the
+ *       total map y ↦ y + u(y) sends a supine voxel to its prone tissue point.</li>
+ *   <li>Registration-only baseline: the same registration from a rigid start (its own rigid
+ *       pre-alignment of the supine image to the prone image), no mechanics.</li>
+ * </ol>
+ * A prone point p is carried to the supine frame by inverting y + u(y) = p with the fixed-point
+ * iteration y ← p − u(y) (converges where |∇u| &lt; 1, true for a fold-free smooth map away from
+ * strong compression), started from the mechanics-only estimate.
+ */
+final class SupineStage {
+
+    /**
+     * Share of the mechanics-only covariance kept in the hybrid covariance: the registration corrects
+     * most of the error of its mechanical start, not all of it (an assumption checked by the
+     * calibration benchmark; docs/planner.md).
+     */
+    static final double HYBRID_START_WEIGHT = 0.25;
+    /** Fixed-point iterations and tolerance (mm) for inverting a displacement field at a point. */
+    static final int INVERSE_ITERATIONS = 100;
+    static final double INVERSE_TOLERANCE_MM = 0.01;
+    /** Finite-difference step (mm) for the Jacobian of a field map: about a voxel. */
+    static final double JACOBIAN_STEP_MM = 1.0;
+
+    private final Affine3D supineToProneFrame;
+    private final VectorField hybrid;
+    private final VectorField regOnly;
+    private final VectorField mechSupine;
+    private final RegistrationResult hybridResult;
+    private final RegistrationResult regResult;
+    private final Volume prone;
+    private final Volume supine;
+    private final List<String> warnings;
+    private final PointMap mechanics;
+
+    private SupineStage(PointMap mechanics, Affine3D t, VectorField hybrid, VectorField regOnly, VectorField mechSupine,
+                        RegistrationResult hr, RegistrationResult rr, Volume prone, Volume supine, List<String> warnings) {
+        this.supineToProneFrame = t;
+        this.hybrid = hybrid;
+        this.regOnly = regOnly;
+        this.mechSupine = mechSupine;
+        this.hybridResult = hr;
+        this.regResult = rr;
+        this.prone = prone;
+        this.supine = supine;
+        this.warnings = warnings;
+        this.mechanics = mechanics;
+    }
+
+    /** The result handle used by the planner. */
+    static final class Result {
+        private final SupineStage s;
+
+        Result(SupineStage s) {
+            this.s = s;
+        }
+
+        /** Prone-frame point (chest wall in place) → supine image frame: T⁻¹. */
+        double[] proneFrameToSupine(double[] x) {
+            return s.supineToProneFrame.inverse().applyPoint(x[0], x[1], x[2]);
+        }
+
+        /** R Σ Rᵀ with R the rotation of T⁻¹. */
+        double[] rotateCovariance(double[] cov) {
+            double[] m = s.supineToProneFrame.inverse().toRowMajor();
+            double[] r = {m[0], m[1], m[2], m[4], m[5], m[6], m[8], m[9], m[10]};
+            return org.turnmark.app.uncertainty.Covariance3.propagate(r, cov);
+        }
+
+        double[] hybridPoint(double[] proneRas) {
+            return s.invert(s.hybrid, proneRas);
+        }
+
+        double[] registrationOnlyPoint(double[] proneRas) {
+            return s.invert(s.regOnly, proneRas);
+        }
+
+        double[] hybridInverse(double[] supineRas) {
+            double[] out = new double[3];
+            DisplacementFields.applyToPoint(s.hybrid, supineRas, out);
+            return out;
+        }
+
+        double[] mechanicsInverse(double[] supineRas) {
+            double[] out = new double[3];
+            DisplacementFields.applyToPoint(s.mechSupine, supineRas, out);
+            return out;
+        }
+
+        /** Node positions (3 per node) carried from the prone frame to the supine frame by T⁻¹. */
+        double[] nodesToSupine(double[] nodes) {
+            Affine3D inv = s.supineToProneFrame.inverse();
+            double[] out = new double[nodes.length];
+            double[] q = new double[3];
+            for (int n = 0; n < nodes.length; n += 3) {
+                q[0] = nodes[n];
+                q[1] = nodes[n + 1];
+                q[2] = nodes[n + 2];
+                inv.applyPoint(q, q);
+                out[n] = q[0];
+                out[n + 1] = q[1];
+                out[n + 2] = q[2];
+            }
+            return out;
+        }
+
+        void flags(List<PlanResult.QualityFlag> flags) {
+            QualityFlags.registration(flags, "hybrid registration", s.hybridResult);
+            QualityFlags.registration(flags, "registration-only baseline", s.regResult);
+        }
+
+        void artifacts(Map<String, PlanArtifacts.Field> fields, Map<String, Volume> warped) {
+            fields.put("hybrid", new PlanArtifacts.Field(s.hybrid, "supine->prone",
+                    "supine image frame: for a supine voxel centre y, y + u(y) is the same tissue point in the prone "
+                            + "image (RAS mm); mechanics start refined by diffeomorphic registration"));
+            fields.put("mechanics_supine_frame", new PlanArtifacts.Field(s.mechSupine, "supine->prone",
+                    "supine image frame: mechanics-only map after rigid alignment, y + u(y) is the prone point"));
+            fields.put("registration_only", new PlanArtifacts.Field(s.regOnly, "supine->prone",
+                    "supine image frame: registration from a rigid start without mechanics (baseline)"));
+            Grid3 g = s.supine.grid();
+            warped.put("mechanics_supine_frame", Resampler.resample(s.prone, g, null, s.mechSupine, Interp.LINEAR,
+                    Outside.CONSTANT));
+            warped.put("hybrid", Resampler.resample(s.prone, g, null, s.hybrid, Interp.LINEAR, Outside.CONSTANT));
+            warped.put("registration_only", Resampler.resample(s.prone, g, null, s.regOnly, Interp.LINEAR,
+                    Outside.CONSTANT));
+        }
+    }
+
+    /**
+     * Runs the three registrations.
+     *
+     * @param mechanics the mechanics prone → supine map (prone frame)
+     */
+    static Result run(Volume prone, Volume supine, Grid3 labelGrid, byte[] labels, PointMap mechanics,
+                      Progress progress, List<String> warnings) {
+        // Mechanics pull-back field on the prone grid (y in the predicted supine shape → prone point).
+        PointMap inverse = reverse(mechanics);
+        DenseDisplacement dd = DisplacementFieldSampler.sample(inverse, prone.grid(),
+                DenseDisplacement.Extrapolation.nearestDecay(Planner.FIELD_DECAY_MM));
+        VectorField mechPull = new VectorField(prone.grid(), dd.ux(), dd.uy(), dd.uz());
+        Volume predictedSupine = Resampler.resample(prone, prone.grid(), null, mechPull, Interp.LINEAR, Outside.CONSTANT);
+
+        progress.update("registration", 0.02);
+        RegistrationConfig rigidOnly = RegistrationConfig.defaults().withPreAlignment(PreAlignment.RIGID)
+                .withIterations(0);
+        RegistrationResult align = new DiffeomorphicRegistration(rigidOnly).register(new RegistrationInput(supine,
+                predictedSupine, null, null, null, "supine image", "mechanics prediction"), progress.sub("registration", 0.02, 0.1));
+        Affine3D t = align.preAlignment();
+
+        // φ₀ = M⁻¹ ∘ T on the supine grid.
+        VectorField tField = DisplacementFields.fromAffine(t, supine.grid());
+        VectorField phi0 = DisplacementFields.compose(mechPull, tField);
+        progress.update("registration", 0.1);
+        RegistrationConfig cfg = RegistrationConfig.defaults();
+        RegistrationResult hr = new DiffeomorphicRegistration(cfg).register(new RegistrationInput(supine, prone, null,
+                null, phi0, "supine image", "prone image"), progress.sub("registration", 0.1, 0.55));
+        RegistrationResult rr = new DiffeomorphicRegistration(cfg.withPreAlignment(PreAlignment.RIGID)).register(
+                new RegistrationInput(supine, prone, null, null, null, "supine image", "prone image"),
+                progress.sub("registration", 0.55, 1.0));
+        if (!hr.improved()) {
+            warnings.add("the hybrid registration could not improve on the mechanics start; the hybrid prediction "
+                    + "equals the rigidly aligned mechanics-only prediction");
+        }
+        return new Result(new SupineStage(mechanics, t, hr.displacement(), rr.displacement(), phi0, hr, rr, prone, supine, warnings));
+    }
+
+    private static PointMap reverse(PointMap m) {
+        if (m instanceof org.turnmark.mechanics.mesh.ConfigurationMap cm) {
+            return cm.reversed();
+        }
+        throw new IllegalArgumentException("the mechanics map must be a configuration map");
+    }
+
+    /**
+     * Solves y + u(y) = p for y: Newton's method with a central-difference Jacobian of y + u(y)
+     * (step {@link #JACOBIAN_STEP_MM}), started from the mechanics-only estimate T⁻¹(M(p)).
+     */
+    private double[] invert(VectorField u, double[] p) {
+        double[] start = new double[3];
+        if (!mechanics.evaluator().map(p[0], p[1], p[2], start)) {
+            System.arraycopy(p, 0, start, 0, 3);
+        }
+        double[] y = supineToProneFrame.inverse().applyPoint(start[0], start[1], start[2]);
+        double[] img = new double[3];
+        double[] a = new double[3];
+        double[] b = new double[3];
+        double[] jac = new double[9];
+        double res = Double.POSITIVE_INFINITY;
+        for (int it = 0; it < INVERSE_ITERATIONS; it++) {
+            DisplacementFields.applyToPoint(u, y, img);
+            double rx = img[0] - p[0];
+            double ry = img[1] - p[1];
+            double rz = img[2] - p[2];
+            res = Math.sqrt(rx * rx + ry * ry + rz * rz);
+            if (res < INVERSE_TOLERANCE_MM) {
+                return y;
+            }
+            for (int c = 0; c < 3; c++) {
+                double[] yp = y.clone();
+                double[] ym = y.clone();
+                yp[c] += JACOBIAN_STEP_MM;
+                ym[c] -= JACOBIAN_STEP_MM;
+                DisplacementFields.applyToPoint(u, yp, a);
+                DisplacementFields.applyToPoint(u, ym, b);
+                for (int r = 0; r < 3; r++) {
+                    jac[3 * r + c] = (a[r] - b[r]) / (2 * JACOBIAN_STEP_MM);
+                }
+            }
+            double[] d = solve3(jac, new double[] {rx, ry, rz});
+            if (d == null) {
+                d = new double[] {rx, ry, rz};
+            }
+            y[0] -= d[0];
+            y[1] -= d[1];
+            y[2] -= d[2];
+        }
+        warnings.add(String.format(Locale.ROOT, "inverting a displacement field at (%.1f, %.1f, %.1f) mm left a "
+                + "residual of %.2f mm", p[0], p[1], p[2], res));
+        return y;
+    }
+
+    /** Solves J d = r by Cramer's rule; null when J is (nearly) singular. */
+    static double[] solve3(double[] j, double[] r) {
+        double det = j[0] * (j[4] * j[8] - j[5] * j[7]) - j[1] * (j[3] * j[8] - j[5] * j[6])
+                + j[2] * (j[3] * j[7] - j[4] * j[6]);
+        if (!(Math.abs(det) > 1e-9)) {
+            return null;
+        }
+        double[] d = new double[3];
+        for (int c = 0; c < 3; c++) {
+            double[] m = j.clone();
+            m[c] = r[0];
+            m[3 + c] = r[1];
+            m[6 + c] = r[2];
+            d[c] = (m[0] * (m[4] * m[8] - m[5] * m[7]) - m[1] * (m[3] * m[8] - m[5] * m[6])
+                    + m[2] * (m[3] * m[7] - m[4] * m[6])) / det;
+        }
+        return d;
+    }
+}

@@ -1,0 +1,45 @@
+package org.turnmark.app.pipeline;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertNotNull;
+import static org.junit.jupiter.api.Assertions.assertThrows;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.io.IOException;
+import java.nio.file.Files;
+import java.nio.file.Path;
+
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.io.TempDir;
+import org.turnmark.geom.Progress;
+
+class PlannerTest {
+
+    @TempDir
+    Path dir;
+
+    @Test
+    void mechanicsOnlyPlanWithoutSupineImage() throws IOException {
+        Path c = SyntheticCase.write(dir, 2, true);
+        Planner.Outcome o = new Planner().run(new CaseFileReader().read(c), Planner.Options.DEFAULT, Progress.NONE);
+        PlanResult r = o.result();
+        PlanResult.LesionResult l = r.lesions().get(0);
+        assertEquals("left", l.side());
+        assertEquals(1, l.predictions().size(), "mechanics-only without a supine image");
+        PlanResult.Prediction m = l.predictions().get(0);
+        assertEquals(PlanResult.MECHANICS, m.method());
+        // Supine gravity pulls the lesion posteriorly (−y) toward the chest wall (REFERENCE §6).
+        assertTrue(m.displacementMm()[1] < -1, "lesion moves posteriorly: " + m.displacementMm()[1]);
+        assertNotNull(m.ellipsoid95());
+        assertTrue(r.warnings().stream().anyMatch(w -> w.contains("no supine image")));
+    }
+
+    @Test
+    void lesionOutsideTheBreastIsRejected() throws IOException {
+        Path c = SyntheticCase.write(dir, 0, true);
+        Files.writeString(c, Files.readString(c).replace("[-30, 18, 5]", "[-30, 45, 5]").replace(", \"radius_mm\": 7", ""));
+        PlanInputException e = assertThrows(PlanInputException.class,
+                () -> new Planner().run(new CaseFileReader().read(c), Planner.Options.DEFAULT, Progress.NONE));
+        assertTrue(e.getMessage().contains("outside the breast"), e.getMessage());
+    }
+}
