@@ -27,6 +27,9 @@ public final class VolumeStatistics {
     /** Bins per histogram pass. */
     static final int BINS = 4096;
 
+    /** Largest entry-wise voxel→world difference (mm) for a mask to count as on the image grid. */
+    public static final double MASK_GRID_TOLERANCE_MM = 1e-4;
+
     /** A bin with at most this many values is sorted directly. */
     public static final int SORT_LIMIT = 1 << 14;
 
@@ -52,6 +55,20 @@ public final class VolumeStatistics {
     /** Statistics of the whole volume with the 1st, 50th and 99th percentiles. */
     public static VolumeStatistics of(Volume v) {
         return of(v.data(), null, 1, 50, 99);
+    }
+
+    /**
+     * Statistics of {@code v} where {@code mask} is non-zero (all voxels if mask is null), with the
+     * requested percentile levels (%).
+     *
+     * @throws IllegalArgumentException if the mask is on another grid, or as for
+     *                                  {@link #of(float[], float[], double...)}
+     */
+    public static VolumeStatistics of(Volume v, Volume mask, double... percentiles) {
+        if (mask != null && !mask.grid().sameGrid(v.grid(), MASK_GRID_TOLERANCE_MM)) {
+            throw new IllegalArgumentException("mask grid " + mask.grid() + " differs from image grid " + v.grid());
+        }
+        return of(v.data(), mask == null ? null : mask.data(), percentiles);
     }
 
     /**

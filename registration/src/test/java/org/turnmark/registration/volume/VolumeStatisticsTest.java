@@ -145,6 +145,12 @@ class VolumeStatisticsTest {
         assertEquals(3.0, VolumeStatistics.of(d, new float[] {0, 1, 0, 1}, 50).percentile(50), 0.0);
         assertThrows(IllegalArgumentException.class, () -> VolumeStatistics.of(d, new float[4], 50));
         assertThrows(IllegalArgumentException.class, () -> VolumeStatistics.of(new float[] {1}, null, 101));
+        org.turnmark.geom.Grid3 g = org.turnmark.geom.Grid3.axisAligned(2, 2, 1, 1, 1, 1, 0, 0, 0);
+        org.turnmark.geom.Grid3 shifted = org.turnmark.geom.Grid3.axisAligned(2, 2, 1, 1, 1, 1, 1, 0, 0);
+        Volume img = new Volume(g, new float[] {1, 2, 3, 4});
+        assertEquals(4.0, VolumeStatistics.of(img, new Volume(g, new float[] {0, 0, 0, 1}), 50).percentile(50), 0.0);
+        assertThrows(IllegalArgumentException.class,
+                () -> VolumeStatistics.of(img, new Volume(shifted, new float[4]), 50));
         assertThrows(IllegalArgumentException.class, () -> VolumeStatistics.of(new float[] {1}, null, 50).percentile(1));
     }
 }
