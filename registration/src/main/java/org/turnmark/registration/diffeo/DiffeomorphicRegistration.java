@@ -49,6 +49,9 @@ import org.turnmark.registration.volume.Volume;
  */
 public final class DiffeomorphicRegistration {
 
+    /** Pyramid level (at least) on which the pre-alignment runs: about 4× the finest spacing. */
+    public static final int PRE_ALIGNMENT_LEVEL = 2;
+
     private final RegistrationConfig config;
 
     public DiffeomorphicRegistration(RegistrationConfig config) {
@@ -87,6 +90,23 @@ public final class DiffeomorphicRegistration {
         Affine3D affine = null;
         double costInitial = Double.NaN;
         double costFinal = Double.NaN;
+        if (config.preAlignment() != PreAlignment.NONE) {
+            // Global alignment on a coarse grid (about 4× the finest spacing) whatever the pyramid depth.
+            int level = Math.max(levels - 1, PRE_ALIGNMENT_LEVEL);
+            Grid3 g = Pyramid.grid(fine, level);
+            float[] f = Pyramid.image(in.fixed(), g, Pyramid.sigmaMm(fine, level));
+            byte[] m = Pyramid.mask(in.fixedMask(), g);
+            float[] mov = movingAtLevel(in.moving(), fine, level);
+            double levelScale = Math.pow(2, level);
+            LevelSolver solver = new LevelSolver(config, g, f, m, mov, in.moving().grid(), movingMaskData,
+                    in.initial(), null, metricFor(g, f, m, mov, movingMaskBytes, in), config.maxStepMm() * levelScale,
+                    levelScale);
+            checkOverlap(solver, g, in);
+            p.update("pre-alignment", 0);
+            affine = PreAligner.align(solver, g, centreOfMass(f, m, g),
+                    in.initial() == null ? shift(f, m, g, in.moving(), movingMaskBytes) : new double[3],
+                    config.preAlignment());
+        }
         for (int li = 0; li < levels; li++) {
             int level = levels - 1 - li;
             Grid3 g = Pyramid.grid(fine, level);
@@ -102,11 +122,6 @@ public final class DiffeomorphicRegistration {
                     (double) (li + 1) / levels);
             if (li == 0) {
                 checkOverlap(solver, g, in);
-                if (config.preAlignment() != PreAlignment.NONE) {
-                    affine = PreAligner.align(solver, g, centreOfMass(f, m, g),
-                            in.initial() == null ? shift(f, m, g, in.moving(), movingMaskBytes) : new double[3],
-                            config.preAlignment());
-                }
             }
             VectorField start = v == null ? VectorField.zeros(g) : DisplacementFields.resample(v, g);
             if (level == 0) {
