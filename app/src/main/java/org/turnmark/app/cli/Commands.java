@@ -11,6 +11,7 @@ final class Commands {
     static void register(CommandLine cl) {
         // Each subcommand is added here as it is built.
         cl.addSubcommand(new InspectCommand());
+        cl.addSubcommand(new PhantomCommand());
         cl.addSubcommand(new RegisterCommand());
     }
 }

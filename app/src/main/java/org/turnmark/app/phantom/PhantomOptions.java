@@ -1,0 +1,78 @@
+package org.turnmark.app.phantom;
+
+import java.util.Locale;
+
+/**
+ * Validated settings of one synthetic case. Lengths in mm, volumes in ml (cm³), angles in degrees.
+ *
+ * @param seed              seed of every random choice (anatomy, truth materials, bias, noise)
+ * @param spacingMm         isotropic voxel spacing of the images, in [1, 5] mm
+ * @param breasts           1 or 2 breasts
+ * @param side              side of a single breast: "right" or "left" (ignored for two breasts)
+ * @param breastVolumeMl    volume of each breast mound anterior of the chest wall, in [100, 1500] ml
+ * @param projection        protrusion of the mound relative to its half-width, in [0.5, 1.3]
+ * @param ptosis            droop of the mound towards inferior, in [0, 1] (0 = none)
+ * @param lesionDiameterMm  volume-equivalent lesion diameter, in [5, 30] mm
+ * @param lesionCount       lesions per case, in [1, 4]
+ * @param contrast          MR-like contrast of the rendered images
+ * @param snr               signal-to-noise ratio (mean breast-tissue signal / noise σ), in [3, 1000]
+ * @param elementMm         hexahedral element size of the truth finite-element model, in [2, 10] mm
+ */
+public record PhantomOptions(long seed, double spacingMm, int breasts, String side, double breastVolumeMl,
+                             double projection, double ptosis, double lesionDiameterMm, int lesionCount,
+                             Contrast contrast, double snr, double elementMm) {
+
+    /** MR-like contrast. */
+    public enum Contrast {
+        /** T1-weighted-like: fat bright, fibroglandular tissue darker, lesion about as dark as gland. */
+        T1,
+        /** Fat-suppressed, contrast-enhanced: fat dark, lesion bright. */
+        FATSAT;
+
+        /** Parses "t1" or "fatsat" (any case). */
+        public static Contrast parse(String s) {
+            String v = s.trim().toLowerCase(Locale.ROOT);
+            if (v.equals("t1")) {
+                return T1;
+            }
+            if (v.equals("fatsat")) {
+                return FATSAT;
+            }
+            throw new IllegalArgumentException("contrast must be t1 or fatsat, got '" + s + "'");
+        }
+    }
+
+    /** Validates every field; messages name the field, the expected range and the value. */
+    public PhantomOptions {
+        range("spacing_mm", spacingMm, 1, 5);
+        if (breasts != 1 && breasts != 2) {
+            throw new IllegalArgumentException("breasts must be 1 or 2, got " + breasts);
+        }
+        if (!"right".equals(side) && !"left".equals(side)) {
+            throw new IllegalArgumentException("side must be right or left, got '" + side + "'");
+        }
+        range("breast_volume_ml", breastVolumeMl, 100, 1500);
+        range("projection", projection, 0.5, 1.3);
+        range("ptosis", ptosis, 0, 1);
+        range("lesion_mm", lesionDiameterMm, 5, 30);
+        if (lesionCount < 1 || lesionCount > 4) {
+            throw new IllegalArgumentException("lesions must be in [1, 4], got " + lesionCount);
+        }
+        if (contrast == null) {
+            throw new IllegalArgumentException("contrast must be given (t1 or fatsat)");
+        }
+        range("snr", snr, 3, 1000);
+        range("element_mm", elementMm, 2, 10);
+    }
+
+    /** Defaults: 2 mm voxels, one right breast of 350 ml, one 12 mm lesion, T1 contrast, SNR 25, 5 mm elements. */
+    public static PhantomOptions defaults(long seed) {
+        return new PhantomOptions(seed, 2.0, 1, "right", 350, 0.85, 0.3, 12, 1, Contrast.T1, 25, 5.0);
+    }
+
+    private static void range(String name, double v, double lo, double hi) {
+        if (!(v >= lo && v <= hi)) {
+            throw new IllegalArgumentException(name + " must be in [" + lo + ", " + hi + "], got " + v);
+        }
+    }
+}
