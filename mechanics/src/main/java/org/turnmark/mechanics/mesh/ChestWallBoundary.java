@@ -47,6 +47,34 @@ public final class ChestWallBoundary {
         public int size() {
             return nodes.length;
         }
+
+        /**
+         * The rim of the contact: chest-wall nodes that also lie on a boundary face not entirely made of
+         * chest-wall nodes (where the tissue's free surface meets the chest wall). Fixing the rim while
+         * the rest slides anchors the base and removes the rigid slide a flat or rotationally symmetric
+         * wall would leave free.
+         *
+         * @return per node of the mesh, true on the rim
+         */
+        public boolean[] rim(MeshSurface surface, int nodeCount) {
+            boolean[] wall = new boolean[nodeCount];
+            for (int n : nodes) {
+                wall[n] = true;
+            }
+            boolean[] rim = new boolean[nodeCount];
+            int[] f = surface.faces();
+            for (int q = 0; q < surface.faceCount(); q++) {
+                if (wall[f[4 * q]] && wall[f[4 * q + 1]] && wall[f[4 * q + 2]] && wall[f[4 * q + 3]]) {
+                    continue;
+                }
+                for (int a = 0; a < 4; a++) {
+                    if (wall[f[4 * q + a]]) {
+                        rim[f[4 * q + a]] = true;
+                    }
+                }
+            }
+            return rim;
+        }
     }
 
     /** With the default contact distance and smoothing width for element size {@code elementMm}. */

@@ -76,6 +76,22 @@ class ChestWallBoundaryTest {
     }
 
     @Test
+    void rimIsTheBorderOfTheContactPatch() {
+        Grid3 g = Grid3.axisAligned(24, 24, 24, 1, 1, 1, 0, 0, 0);
+        byte[] lab = slabAndBox(g);
+        LabelMesh lm = LabelMesher.mesh(g, lab, MesherConfig.of(2));
+        MeshSurface s = MeshSurface.of(lm.mesh());
+        ChestWallBoundary.ChestWall cw = ChestWallBoundary.find(lm.mesh(), s, g, lab, 2);
+        boolean[] rim = cw.rim(s, lm.mesh().nodeCount());
+        int count = 0;
+        for (boolean b : rim) {
+            count += b ? 1 : 0;
+        }
+        // The 9 x 9 node contact patch has a border of 4·9 − 4 = 32 nodes.
+        assertEquals(32, count);
+    }
+
+    @Test
     void floatingBodyIsRejected() {
         Grid3 g = Grid3.axisAligned(24, 24, 24, 1, 1, 1, 0, 0, 0);
         byte[] lab = new byte[g.size()];
