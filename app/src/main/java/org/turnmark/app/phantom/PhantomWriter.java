@@ -184,7 +184,10 @@ public final class PhantomWriter {
         m.put("options", opts);
         m.put("snr_definition", "noise sigma = mean noise-free signal over breast-tissue voxels (labels 1, 2, 3, 5)"
                 + " / SNR; Rician magnitude noise");
-        m.put("noise_sigma", Map.of("prone", round(c.proneNoiseSigma()), "supine", round(c.supineNoiseSigma())));
+        Map<String, Object> sigma = new LinkedHashMap<>();
+        sigma.put("prone", round(c.proneNoiseSigma()));
+        sigma.put("supine", round(c.supineNoiseSigma()));
+        m.put("noise_sigma", sigma);
         m.put("truth_conditions", PhantomReadme.conditionsJson(c.conditions()));
         List<Object> lesions = new ArrayList<>();
         for (int l = 0; l < c.anatomy().lesionCount(); l++) {
