@@ -12,7 +12,21 @@ import org.turnmark.geom.Parallel;
  */
 final class BoxSums {
 
+    /** Per-thread prefix-sum buffer, reused across calls (the sums run ten times per iteration). */
+    private static final ThreadLocal<double[]> SCRATCH = ThreadLocal.withInitial(() -> new double[0]);
+
     private BoxSums() {
+    }
+
+    /** A buffer of at least n doubles owned by the calling thread; the first {@code zeroed} are set to 0. */
+    private static double[] scratch(int n, int zeroed) {
+        double[] b = SCRATCH.get();
+        if (b.length < n) {
+            b = new double[n];
+            SCRATCH.set(b);
+        }
+        java.util.Arrays.fill(b, 0, zeroed, 0.0);
+        return b;
     }
 
     static void boxSum(float[] a, int nx, int ny, int nz, int rx, int ry, int rz) {
@@ -29,7 +43,7 @@ final class BoxSums {
 
     private static void passX(float[] a, int nx, int ny, int nz, int r) {
         Parallel.forEachBlock(nz, (long) nx * ny * nz, k -> {
-            double[] p = new double[nx + 1];
+            double[] p = scratch(nx + 1, 1);
             for (int j = 0; j < ny; j++) {
                 int row = nx * (j + ny * k);
                 for (int i = 0; i < nx; i++) {
@@ -47,7 +61,7 @@ final class BoxSums {
     private static void passY(float[] a, int nx, int ny, int nz, int r) {
         Parallel.forEachBlock(nz, (long) nx * ny * nz, k -> {
             // p[(j)*nx + i] = Σ_{t<j} a(i, t, k); rows walked with i fastest for cache.
-            double[] p = new double[(ny + 1) * nx];
+            double[] p = scratch((ny + 1) * nx, nx);
             int base = nx * ny * k;
             for (int j = 0; j < ny; j++) {
                 int src = base + nx * j;
@@ -70,7 +84,7 @@ final class BoxSums {
     private static void passZ(float[] a, int nx, int ny, int nz, int r) {
         int slice = nx * ny;
         Parallel.forEachBlock(ny, (long) nx * ny * nz, j -> {
-            double[] p = new double[(nz + 1) * nx];
+            double[] p = scratch((nz + 1) * nx, nx);
             for (int k = 0; k < nz; k++) {
                 int src = nx * j + slice * k;
                 int pk = k * nx;
