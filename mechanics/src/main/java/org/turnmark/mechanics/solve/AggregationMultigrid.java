@@ -31,7 +31,7 @@ import org.turnmark.geom.Parallel;
  */
 final class AggregationMultigrid implements Preconditioner {
 
-    static final int COARSEST_MAX = 800;
+    static final int COARSEST_MAX = 300;
     static final int CHEBYSHEV_DEGREE = 2;
     static final double CHEBYSHEV_RATIO = 30;
     /** Power iterations for λ_max(D⁻¹A); the 1.1 safety factor covers their under-estimate. */
@@ -134,6 +134,16 @@ final class AggregationMultigrid implements Preconditioner {
 
     int levelCount() {
         return levels.size();
+    }
+
+    /** Level sizes (block rows, block size, stored blocks), for diagnostics. */
+    String describe() {
+        StringBuilder sb = new StringBuilder();
+        for (Level l : levels) {
+            sb.append(l.a.rows).append('x').append(l.a.b).append(" nnzb=").append(l.a.col.length)
+                    .append(" lmax=").append(String.format("%.3g", l.lmax)).append("; ");
+        }
+        return sb.toString();
     }
 
     @Override

@@ -25,8 +25,8 @@ final class FeSystem {
 
     private static final int ELEM_BLOCK = 128;
 
-    final HexMesh mesh;
-    final ReferenceGeometry geo;
+    HexMesh mesh;
+    ReferenceGeometry geo;
     final HexFormulation form;
     final double[] mu;
     final double[] kappa;
@@ -34,6 +34,8 @@ final class FeSystem {
     final int nodes;
     final int elements;
     final BlockCsr k;
+    /** Σ_e (3μ_e + κ_e) V_e, mN·mm: the scale of element-energy round-off. */
+    double energyScale;
     private final int[] elemBlock;
     private final int[] colorPtr;
     private final int[] colorElems;
@@ -62,6 +64,11 @@ final class FeSystem {
             rho[e] = m.densityKgM3();
         }
         geo = ReferenceGeometry.of(mesh);
+        double scale = 0;
+        for (int e = 0; e < elements; e++) {
+            scale += (3 * mu[e] + kappa[e]) * geo.volume(e);
+        }
+        energyScale = scale;
         int[] hex = mesh.hex();
         // node → elements
         int[] nePtr = new int[nodes + 1];
@@ -149,6 +156,24 @@ final class FeSystem {
         for (int e = 0; e < elements; e++) {
             colorElems[cf[color[e]]++] = e;
         }
+    }
+
+    /**
+     * Moves the reference configuration to new node positions (same topology): recomputes the
+     * reference geometry, keeps sparsity and colouring.
+     *
+     * @throws org.turnmark.mechanics.element.InvertedElementException if an element is degenerate
+     */
+    void moveReference(double[] xyzMm) {
+        HexMesh m = mesh.withNodes(xyzMm);
+        ReferenceGeometry g = ReferenceGeometry.of(m);
+        double scale = 0;
+        for (int e = 0; e < elements; e++) {
+            scale += (3 * mu[e] + kappa[e]) * g.volume(e);
+        }
+        mesh = m;
+        geo = g;
+        energyScale = scale;
     }
 
     /**

@@ -42,6 +42,17 @@ public final class HyperelasticSolver {
      * over ~1e4–1e5 element terms, so differences below ~1e−12 of its magnitude are noise.
      */
     static final double ENERGY_ROUNDOFF = 1e-12;
+    /**
+     * Cancellation in each element energy (J^(−2/3) I₁ − 3 and J² − 1 − 2 ln J near J = 1) leaves an
+     * absolute error of a few ulps of (3μ + κ)·V per element; this factor times Σ(3μ + κ)V bounds
+     * their sum with margin (10⁵ elements × 1e−16 × a few = 1e−10 is not reached in practice).
+     */
+    static final double ELEMENT_ROUNDOFF = 1e-13;
+
+    /** Largest relative tolerance of a linear solve (far from the solution). */
+    static final double FORCING_MAX = 1e-2;
+    /** Linear tolerance = this × relative force residual (bounded below by the configured floor). */
+    static final double FORCING_FACTOR = 1e-2;
 
     private final SolverConfig cfg;
     private final FeSystem sys;
@@ -191,10 +202,27 @@ public final class HyperelasticSolver {
         return result(st, steps, cuts, t0);
     }
 
+    /**
+     * Moves the reference (unloaded) node positions, keeping topology, materials, constraints and
+     * solver workspaces (for the reference-state iteration).
+     *
+     * @param xyzMm new reference coordinates, 3 per node, mm; copied
+     * @throws org.turnmark.mechanics.element.InvertedElementException if an element degenerates
+     */
+    void moveReference(double[] xyzMm) {
+        sys.moveReference(xyzMm.clone());
+    }
+
+    /** The current reference mesh. */
+    HexMesh referenceMesh() {
+        return sys.mesh;
+    }
+
     private SolveResult result(Step st, int steps, int cuts, long t0) {
         long ms = (System.nanoTime() - t0) / 1_000_000;
         return new SolveResult(st.u.clone(), true, steps, cuts, newtonIterations, linearIterations, st.residual,
-                st.relResidual, st.relEnergy, st.energy, st.minDetF, ms);
+                st.relResidual, st.relEnergy, st.energy, st.minDetF, ms,
+                Arrays.copyOf(st.history, st.historyLength));
     }
 
     /** Newton state of one load increment. */
@@ -206,6 +234,8 @@ public final class HyperelasticSolver {
         final double[] trial;
         final double[] detF = new double[1];
         int iterations;
+        double[] history = new double[8];
+        int historyLength;
         double residual;
         double relResidual;
         double relEnergy;
@@ -236,6 +266,8 @@ public final class HyperelasticSolver {
             fnorm = rn > 0 ? rn : 1;
         }
         lastResidual = rn;
+        st.historyLength = 0;
+        record(st, rn / fnorm);
         double e0 = 0;
         double relE = 1;
         if (rn <= cfg.residualTolerance() * fnorm) {
@@ -256,8 +288,13 @@ public final class HyperelasticSolver {
                 } else {
                     precond.refresh(sys.k);
                 }
-                linearIterations += pcg.solve(sys.k, precond, st.rhs, st.du, cfg.linearTolerance(),
-                        cfg.maxLinearIterations());
+                // inexact Newton: forcing term proportional to the relative residual keeps the local
+                // convergence quadratic (Dembo, Eisenstat & Steihaug, SIAM J Numer Anal 19, 1982)
+                double eta = Math.max(cfg.linearTolerance(), Math.min(FORCING_MAX, FORCING_FACTOR * rn / fnorm));
+                linearIterations += pcg.solve(sys.k, precond, st.rhs, st.du, eta, cfg.maxLinearIterations());
+                // the multigrid coarse correction is not confined to the admissible subspace, so the
+                // iterate carries round-off-sized constrained components: remove them exactly
+                proj.project(st.du);
             } catch (LinearSolveException ex) {
                 lastFailure = "linear solve failed: " + ex.getMessage();
                 return false;
@@ -282,8 +319,10 @@ public final class HyperelasticSolver {
                         accepted = true;
                         break;
                     }
-                    double pit = wt - lambda * VecOps.dot(fext, st.trial);
-                    double noise = ENERGY_ROUNDOFF * (Math.abs(wt) + Math.abs(pi0) + Math.abs(w));
+                    double work = lambda * VecOps.dot(fext, st.trial);
+                    double pit = wt - work;
+                    double noise = ENERGY_ROUNDOFF * (Math.abs(wt) + Math.abs(w) + Math.abs(work) + Math.abs(pi0))
+                            + ELEMENT_ROUNDOFF * sys.energyScale;
                     if (pit <= pi0 + ARMIJO * alpha * slope + noise) {
                         accepted = true;
                         break;
@@ -306,6 +345,7 @@ public final class HyperelasticSolver {
             residual(lambda, fext, st.r);
             rn = VecOps.norm(st.r);
             lastResidual = rn;
+            record(st, rn / fnorm);
             if (!Double.isFinite(rn)) {
                 lastFailure = "non-finite residual";
                 return false;
@@ -318,6 +358,13 @@ public final class HyperelasticSolver {
         lastFailure = "no convergence in " + cfg.maxNewtonIterations() + " Newton iterations (relative residual "
                 + String.format("%.3g", rn / fnorm) + ")";
         return false;
+    }
+
+    private static void record(Step st, double rel) {
+        if (st.historyLength == st.history.length) {
+            st.history = Arrays.copyOf(st.history, 2 * st.historyLength);
+        }
+        st.history[st.historyLength++] = rel;
     }
 
     private void finish(Step st, double w, double rn, double fnorm, double relE, double lambda, double[] fext) {

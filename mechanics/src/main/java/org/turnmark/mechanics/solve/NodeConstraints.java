@@ -3,12 +3,13 @@ package org.turnmark.mechanics.solve;
 import java.util.Arrays;
 
 /**
- * Displacement constraints per node: {@link Kind#FREE}, {@link Kind#FIXED} (zero displacement) or
+ * Displacement constraints per node: {@link Kind#FREE}, {@link Kind#FIXED} (zero displacement),
  * {@link Kind#SLIDING} along a plane with unit normal n (u·n = 0, tangential motion free; a
- * chest-wall node slides on the tangent plane of the wall at its reference position).
+ * chest-wall node slides on the tangent plane of the wall at its reference position) or
+ * {@link Kind#LINE} along a unit direction t (u ∥ t).
  *
- * <p>How the solver applies them: with the per-node projector P = I (free), 0 (fixed) or
- * I − n nᵀ (sliding), each Newton system K Δu = −R is replaced by
+ * <p>How the solver applies them: with the per-node projector P = I (free), 0 (fixed),
+ * I − n nᵀ (sliding) or t tᵀ (line), each Newton system K Δu = −R is replaced by
  * (P K P + I − P) Δu = −P R. This eliminates the constrained directions exactly (no penalty
  * parameter, no change of matrix size or sparsity, and the matrix stays symmetric positive
  * definite); its solution satisfies (I − P) Δu = 0, so every iterate stays admissible.
@@ -26,7 +27,9 @@ public final class NodeConstraints {
         /** All three displacement components zero. */
         FIXED,
         /** Normal displacement zero, tangential displacement free. */
-        SLIDING
+        SLIDING,
+        /** Displacement only along a unit direction (e.g. on the edge where two sliding planes meet). */
+        LINE
     }
 
     private final byte[] kind;
@@ -74,7 +77,7 @@ public final class NodeConstraints {
         check(n);
         double len = Math.sqrt(nx * nx + ny * ny + nz * nz);
         if (!(len > 1e-12) || !Double.isFinite(len)) {
-            throw new IllegalArgumentException("sliding normal of node " + n + " must be finite and non-zero, got ("
+            throw new IllegalArgumentException("sliding normal or line direction of node " + n + " must be finite and non-zero, got ("
                     + nx + ", " + ny + ", " + nz + ")");
         }
         kind[n] = (byte) Kind.SLIDING.ordinal();
@@ -84,13 +87,25 @@ public final class NodeConstraints {
         return this;
     }
 
+    /**
+     * Lets node {@code n} move only along (tx, ty, tz) (normalised; finite, non-zero). Returns this.
+     */
+    public NodeConstraints guide(int n, double tx, double ty, double tz) {
+        slide(n, tx, ty, tz);
+        kind[n] = (byte) Kind.LINE.ordinal();
+        return this;
+    }
+
     /** Constraint kind of node {@code n}. */
     public Kind kind(int n) {
         check(n);
         return Kind.values()[kind[n]];
     }
 
-    /** Unit sliding normal of node {@code n} (zero unless sliding), written into {@code out[0..2]}. */
+    /**
+     * Unit sliding normal (sliding) or direction (line) of node {@code n}, zero otherwise, written
+     * into {@code out[0..2]}.
+     */
     public void normal(int n, double[] out) {
         check(n);
         out[0] = normal[3 * n];

@@ -9,6 +9,7 @@ final class Projector {
     static final byte FREE = 0;
     static final byte FIXED = 1;
     static final byte SLIDING = 2;
+    static final byte LINE = 3;
 
     final byte[] kind;
     final double[] normal;
@@ -44,17 +45,23 @@ final class Projector {
                 v[o] = 0;
                 v[o + 1] = 0;
                 v[o + 2] = 0;
-            } else {
+            } else if (kind[n] == SLIDING) {
                 double nx = normal[o], ny = normal[o + 1], nz = normal[o + 2];
                 double s = v[o] * nx + v[o + 1] * ny + v[o + 2] * nz;
                 v[o] -= s * nx;
                 v[o + 1] -= s * ny;
                 v[o + 2] -= s * nz;
+            } else {
+                double tx = normal[o], ty = normal[o + 1], tz = normal[o + 2];
+                double s = v[o] * tx + v[o + 1] * ty + v[o + 2] * tz;
+                v[o] = s * tx;
+                v[o + 1] = s * ty;
+                v[o + 2] = s * tz;
             }
         }
     }
 
-    /** P of node n as row-major 3×3 into out. */
+    /** P of node n (I free, 0 fixed, I − n nᵀ sliding, t tᵀ line) as row-major 3×3 into out. */
     void matrix(int n, double[] out) {
         int o = 3 * n;
         for (int i = 0; i < 3; i++) {
@@ -66,6 +73,9 @@ final class Projector {
                         break;
                     case SLIDING:
                         out[3 * i + j] = id - normal[o + i] * normal[o + j];
+                        break;
+                    case LINE:
+                        out[3 * i + j] = normal[o + i] * normal[o + j];
                         break;
                     default:
                         out[3 * i + j] = id;

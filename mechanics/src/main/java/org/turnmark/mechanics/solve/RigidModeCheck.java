@@ -100,11 +100,21 @@ final class RigidModeCheck {
             // R = [I | −[d]ₓ]: displacement of mode (t, ω) is t + ω × d
             double[] r = {1, 0, 0, 0, dz, -dy, 0, 1, 0, -dz, 0, dx, 0, 0, 1, dy, -dx, 0};
             System.arraycopy(r, 0, rm, 0, 18);
-            // Q = I − P: identity (fixed) or n nᵀ (sliding)
+            // Q = I − P: identity (fixed), n nᵀ (sliding) or I − t tᵀ (line)
             c.normal(n, nrm);
             for (int i = 0; i < 3; i++) {
                 for (int j = 0; j < 3; j++) {
-                    q[3 * i + j] = kind == NodeConstraints.Kind.FIXED ? (i == j ? 1 : 0) : nrm[i] * nrm[j];
+                    double id = i == j ? 1 : 0;
+                    switch (kind) {
+                        case FIXED:
+                            q[3 * i + j] = id;
+                            break;
+                        case SLIDING:
+                            q[3 * i + j] = nrm[i] * nrm[j];
+                            break;
+                        default:
+                            q[3 * i + j] = id - nrm[i] * nrm[j];
+                    }
                 }
             }
             for (int a = 0; a < 6; a++) {

@@ -17,10 +17,14 @@ package org.turnmark.mechanics.solve;
  * @param strainEnergyMnMm    total strain energy at the solution, mN·mm (µJ)
  * @param minDetF             smallest det F over all Gauss points at the solution
  * @param timeMs              wall time, ms
+ * @param lastIncrementResiduals relative force residual ‖P R‖/‖P F_ext‖ before the first and after
+ *                            each Newton iteration of the last load increment (for convergence
+ *                            studies)
  */
 public record SolveResult(double[] u, boolean converged, int loadSteps, int cutSteps, int newtonIterations,
                           int linearIterations, double residualNormMn, double relativeResidual,
-                          double relativeEnergyNorm, double strainEnergyMnMm, double minDetF, long timeMs) {
+                          double relativeEnergyNorm, double strainEnergyMnMm, double minDetF, long timeMs,
+                          double[] lastIncrementResiduals) {
 
     /** Largest nodal displacement magnitude, mm. */
     public double maxDisplacementMm() {

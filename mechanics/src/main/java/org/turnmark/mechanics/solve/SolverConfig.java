@@ -16,9 +16,11 @@ import org.turnmark.mechanics.element.HexFormulation;
  * @param minLoadIncrement    smallest load increment before giving up, in (0, 1] (default 1/1024)
  * @param maxNewtonIterations Newton iterations per load step before the step is cut (default 25)
  * @param residualTolerance   relative force residual, (0, 1) (default 1e−6)
- * @param energyTolerance     relative energy norm, (0, 1) (default 1e−12)
+ * @param energyTolerance     relative energy norm, (0, 1) (default 1e−10)
  * @param linearSolver        linear solver (default {@link LinearSolverKind#PCG_MULTIGRID})
- * @param linearTolerance     relative residual of each linear solve, (0, 1) (default 1e−8)
+ * @param linearTolerance     floor of the relative residual of each linear solve, (0, 1) (default
+ *                            1e−10); the tolerance used is max(floor, min(1e−2, 1e−2·‖P R‖/‖P F_ext‖))
+ *                            (inexact Newton)
  * @param maxLinearIterations conjugate-gradient iterations per linear solve (default 5000)
  * @param lineSearch          backtracking line search on the total potential energy (default on)
  * @param nodalForcesMn       optional extra dead loads, 3 per node, mN, scaled with the load factor
@@ -69,8 +71,8 @@ public record SolverConfig(HexFormulation formulation, int loadSteps, double min
 
     /** The documented defaults. */
     public static SolverConfig defaults() {
-        return new SolverConfig(HexFormulation.MEAN_DILATATION, 8, 1.0 / 1024, 25, 1e-6, 1e-12,
-                LinearSolverKind.PCG_MULTIGRID, 1e-8, 5000, true, null);
+        return new SolverConfig(HexFormulation.MEAN_DILATATION, 8, 1.0 / 1024, 25, 1e-6, 1e-10,
+                LinearSolverKind.PCG_MULTIGRID, 1e-10, 5000, true, null);
     }
 
     /** A copy with another formulation. */

@@ -1,0 +1,23 @@
+package org.turnmark.mechanics.solve;
+
+import org.turnmark.mechanics.mesh.HexMesh;
+
+/**
+ * An estimated gravity-free reference configuration.
+ *
+ * @param reference          reference (unloaded) mesh: the loaded mesh's topology at the reference
+ *                           node positions, world mm
+ * @param uToLoaded          displacement from the reference to the loaded configuration under the
+ *                           given gravity, 3 per node, mm (reference + u ≈ loaded)
+ * @param iterations         forward solves used by the iteration (0 for reverse gravity)
+ * @param maxMismatchMm      max over nodes of |reference + u − loaded|, mm, of the returned state
+ * @param mismatchHistoryMm  max nodal mismatch after each forward solve, mm
+ * @param newtonIterations   Newton iterations over all forward solves
+ * @param linearIterations   conjugate-gradient iterations over all forward solves
+ * @param timeMs             wall time, ms
+ * @param method             "fixed-point (Anderson m)" or "reverse gravity (biased)"
+ */
+public record ReferenceStateResult(HexMesh reference, double[] uToLoaded, int iterations, double maxMismatchMm,
+                                   double[] mismatchHistoryMm, int newtonIterations, int linearIterations,
+                                   long timeMs, String method) {
+}
