@@ -184,9 +184,12 @@ public final class NiftiHeader {
         return voxOffset;
     }
 
-    /** True if stored values are scaled: {@code scl_slope} finite and non-zero. */
+    /**
+     * True if stored values are scaled: {@code scl_slope} finite and non-zero, and not the identity
+     * (slope 1 with intercept 0).
+     */
     public boolean isScaled() {
-        return sclSlope != 0 && Double.isFinite(sclSlope);
+        return sclSlope != 0 && Double.isFinite(sclSlope) && !(sclSlope == 1 && sclInter == 0);
     }
 
     /** Effective slope: {@code scl_slope} if {@link #isScaled()}, else 1. */

@@ -545,7 +545,7 @@ public final class NiftiReader {
                 long size = Files.size(p);
                 return open(Files.newInputStream(p), p.toString(), size);
             } catch (NoSuchFileException e) {
-                throw new NiftiFormatException(p.toString(), "file", "", "file not found", e);
+                throw new NiftiFormatException(p.toString(), "file", "", "not found", e);
             }
         }
 
