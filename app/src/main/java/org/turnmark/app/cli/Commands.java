@@ -13,5 +13,6 @@ final class Commands {
         cl.addSubcommand(new InspectCommand());
         cl.addSubcommand(new PhantomCommand());
         cl.addSubcommand(new RegisterCommand());
+        cl.addSubcommand(new GuiCommand());
     }
 }
