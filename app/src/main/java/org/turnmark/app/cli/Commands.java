@@ -13,6 +13,7 @@ final class Commands {
         cl.addSubcommand(new InspectCommand());
         cl.addSubcommand(new PhantomCommand());
         cl.addSubcommand(new RegisterCommand());
+        cl.addSubcommand(new SimulateCommand());
         cl.addSubcommand(new GuiCommand());
     }
 }
