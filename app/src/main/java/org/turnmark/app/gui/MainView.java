@@ -304,6 +304,15 @@ public final class MainView extends BorderPane {
         table.setPlaceholder(new Label("No results yet: run the plan or open a plan folder."));
         ListView<String> flags = new ListView<>(vm.flags());
         flags.setId("flags-list");
+        flags.setCellFactory(list -> new javafx.scene.control.ListCell<>() {
+            @Override
+            protected void updateItem(String item, boolean empty) {
+                super.updateItem(item, empty);
+                setText(empty ? null : item);
+                setWrapText(true);
+                setPrefWidth(0);
+            }
+        });
         flags.setPrefWidth(340);
         flags.setPlaceholder(new Label("No quality flags."));
         Label where = new Label();

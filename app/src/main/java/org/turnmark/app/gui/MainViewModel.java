@@ -104,6 +104,8 @@ public final class MainViewModel {
     private boolean loadingMark;
     private ProgressTask<Path> runTask;
     private Task<?> loadTask;
+    /** Set when a plan is opened: the first image shown centres the crosshair on a prediction. */
+    private boolean centreOnPrediction;
 
     /**
      * @param launcher runs a plan; null when this build cannot plan (the run action is then disabled)
@@ -223,6 +225,7 @@ public final class MainViewModel {
         planFolderText.set(plan.describeLocation());
         title.set("Turnmark — plan " + plan.dir().getFileName());
         viewer.overlays().setAll(plan.overlays());
+        centreOnPrediction = true;
         images.setAll(plan.images());
         selectedImage.set(null);
         if (!plan.images().isEmpty()) {
@@ -254,6 +257,12 @@ public final class MainViewModel {
                 resolveVoxelMarks();
             }
             viewer.show(choice, v);
+            if (centreOnPrediction) {
+                centreOnPrediction = false;
+                viewer.overlays().stream().filter(o -> o.posture() == choice.posture()
+                        && o.kind() != Overlay.Kind.LESION_MARK).findFirst()
+                        .ifPresent(o -> viewer.moveCrosshair(o.centerRasMm()));
+            }
             if (mode.get() == Mode.CASE && selectedLesion.get() < 0 && !lesionIds.isEmpty()) {
                 selectedLesion.set(0);
                 double[] m = marks.get(lesionIds.get(0));

@@ -14,12 +14,13 @@ import com.fasterxml.jackson.core.JsonProcessingException;
 import org.turnmark.app.export.PlanJson;
 import org.turnmark.app.pipeline.CaseFile;
 import org.turnmark.app.pipeline.PlanResult;
+import org.turnmark.geom.Grid3;
 import org.turnmark.registration.nifti.NiftiHeader;
 import org.turnmark.registration.nifti.NiftiReader;
 
 /**
  * What the GUI shows of a plan output folder: its {@code plan.json} (read with {@link PlanJson}),
- * the report PDF and the scalar NIfTI images beside it, and the input images named by the case.
+ * the report PDF and the scalar NIfTI images in it, and the input images named by the case.
  * Predictions in the supine image frame are drawn on supine-frame images; mechanics-only predictions
  * in the prone frame (chest wall held in place) and the lesion centroids are drawn on prone-frame
  * images. Plain Java, immutable.
@@ -35,6 +36,9 @@ import org.turnmark.registration.nifti.NiftiReader;
  */
 public record PlanFolder(Path dir, PlanResult plan, Path report, List<InfoRow> inputs, List<ResultRow> results,
                          List<String> flags, List<Overlay> overlays, List<ImageChoice> images) {
+
+    /** Affine entries agreeing within this (mm) count as the same grid: far below any voxel size. */
+    static final double SAME_GRID_MM = 1e-3;
 
     /** Name of the plan file inside the folder. */
     public static final String PLAN_JSON = "plan.json";
@@ -64,10 +68,16 @@ public record PlanFolder(Path dir, PlanResult plan, Path report, List<InfoRow> i
         List<InfoRow> inputs = new ArrayList<>();
         List<ImageChoice> images = new ArrayList<>();
         CaseFile c = plan.input();
+        Grid3 supineGrid = null;
         if (c != null) {
             inputs.addAll(CaseSummary.rows(c));
-            addIfExists(images, "supine image (input)", c.supineImage(), Overlay.Posture.SUPINE);
-            addIfExists(images, "prone image (input)", c.proneImage(), Overlay.Posture.PRONE);
+            if (addIfExists(images, "supine image (input)", c.supineImage(), Overlay.Posture.SUPINE)) {
+                try {
+                    supineGrid = new NiftiReader().readHeader(Path.of(c.supineImage())).grid();
+                } catch (IOException e) {
+                    supineGrid = null;
+                }
+            }
         }
         if (plan.model() != null) {
             inputs.add(new InfoRow("Mesh", String.format(Locale.ROOT, "%d elements of %.1f mm, %d nodes, chest wall %s",
@@ -96,7 +106,11 @@ public record PlanFolder(Path dir, PlanResult plan, Path report, List<InfoRow> i
                 flags.add("Note: " + w);
             }
         }
-        images.addAll(folderImages(dir));
+        images.addAll(folderImages(dir, supineGrid));
+        if (c != null) {
+            addIfExists(images, "prone image (input)", c.proneImage(), Overlay.Posture.PRONE);
+        }
+        // Supine frame first (stable: input before outputs), then outputs in the prone frame, then the prone input.
         images.sort(Comparator.comparing(i -> i.posture() == Overlay.Posture.SUPINE ? 0 : 1));
         return new PlanFolder(dir, plan, findReport(dir), List.copyOf(inputs), List.copyOf(rows), List.copyOf(flags),
                 List.copyOf(overlays), List.copyOf(images));
@@ -164,10 +178,12 @@ public record PlanFolder(Path dir, PlanResult plan, Path report, List<InfoRow> i
         return String.format(Locale.ROOT, "(%.1f, %.1f, %.1f) mm", p[0], p[1], p[2]);
     }
 
-    private static void addIfExists(List<ImageChoice> images, String name, String path, Overlay.Posture posture) {
+    private static boolean addIfExists(List<ImageChoice> images, String name, String path, Overlay.Posture posture) {
         if (path != null && Files.isRegularFile(Path.of(path))) {
             images.add(new ImageChoice(name, Path.of(path), posture));
+            return true;
         }
+        return false;
     }
 
     private static Path findReport(Path dir) throws IOException {
@@ -178,10 +194,11 @@ public record PlanFolder(Path dir, PlanResult plan, Path report, List<InfoRow> i
     }
 
     /**
-     * Scalar NIfTI images in the folder and its sub-folders (vector fields are skipped). An image whose name mentions
-     * "supine" is taken to be in the supine image frame, any other in the prone frame.
+     * Scalar NIfTI images in the folder and its sub-folders (vector fields are skipped). An image on the
+     * supine input image's grid is in the supine frame; any other is in the prone frame (without a supine
+     * image every output is).
      */
-    private static List<ImageChoice> folderImages(Path dir) throws IOException {
+    private static List<ImageChoice> folderImages(Path dir, Grid3 supineGrid) throws IOException {
         List<Path> files;
         // The planner writes images into sub-folders (warped/, labels/); one level down is enough.
         try (Stream<Path> s = Files.walk(dir, 2)) {
@@ -193,8 +210,9 @@ public record PlanFolder(Path dir, PlanResult plan, Path report, List<InfoRow> i
         List<ImageChoice> out = new ArrayList<>();
         NiftiReader reader = new NiftiReader();
         for (Path p : files) {
+            NiftiHeader h;
             try {
-                NiftiHeader h = reader.readHeader(p);
+                h = reader.readHeader(p);
                 if (h.isVectorField() || h.components() > 1) {
                     continue;
                 }
@@ -202,7 +220,7 @@ public record PlanFolder(Path dir, PlanResult plan, Path report, List<InfoRow> i
                 continue;
             }
             String n = dir.relativize(p).toString().replace('\\', '/').replaceAll("(?i)\\.nii(\\.gz)?$", "");
-            Overlay.Posture posture = n.toLowerCase(Locale.ROOT).contains("supine")
+            Overlay.Posture posture = supineGrid != null && h.grid().sameGrid(supineGrid, SAME_GRID_MM)
                     ? Overlay.Posture.SUPINE : Overlay.Posture.PRONE;
             out.add(new ImageChoice(n.replace('_', ' '), p, posture));
         }

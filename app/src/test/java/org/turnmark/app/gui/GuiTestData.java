@@ -103,6 +103,10 @@ final class GuiTestData {
         Files.createDirectories(dir.resolve("warped"));
         Files.createDirectories(dir.resolve("fields"));
         NiftiWriter.writeVolume(dir.resolve("warped/prone_to_supine_hybrid.nii.gz"), phantom(SUPINE_LESION));
+        // A label image on its own (prone-side) grid: not the supine grid, so shown in the prone frame.
+        Files.createDirectories(dir.resolve("labels"));
+        NiftiWriter.writeVolume(dir.resolve("labels/labels_used.nii.gz"),
+                Volume.zeros(Grid3.axisAligned(8, 8, 8, 5, 5, 5, -20, -20, -20)));
         NiftiWriter.writeDisplacementField(dir.resolve("fields/hybrid.nii.gz"), VectorField.zeros(grid()),
                 "prone->supine");
         Files.writeString(dir.resolve("report.pdf"), "%PDF-1.4\n", StandardCharsets.US_ASCII);

@@ -149,6 +149,8 @@ class MainViewModelTest {
             assertEquals(3, vm.flags().size());
             assertTrue(vm.planFolderTextProperty().get().contains("report.pdf"));
             assertEquals(Overlay.Posture.SUPINE, vm.viewer().posture());
+            assertArrayEquals(new double[] {-36.5, -4, 8}, vm.viewer().crosshair(), EXACT,
+                    "crosshair on the first supine-frame prediction");
         });
     }
 

@@ -48,12 +48,17 @@ class PlanFolderTest {
         assertTrue(p.flags().get(0).startsWith("Warning — method agreement: mechanics-only and hybrid differ"));
         assertEquals("Note: nipple detected as the most anterior skin point", p.flags().get(2));
         assertEquals(dir.resolve("out/report.pdf"), p.report());
-        // Input supine and prone images, plus the warped image; the displacement field is not viewable.
-        assertEquals(3, p.images().size());
+        // Supine input, the warped image (on the supine grid), the label image (own grid: prone frame),
+        // the prone input; the displacement field is not viewable.
+        assertEquals(4, p.images().size());
         assertTrue(p.images().stream().noneMatch(i -> i.path().getParent().getFileName().toString().equals("fields")));
-        assertEquals("warped/prone to supine hybrid", p.images().get(1).name());
+        assertEquals("supine image (input)", p.images().get(0).name());
         assertEquals(Overlay.Posture.SUPINE, p.images().get(0).posture());
-        assertEquals(Overlay.Posture.SUPINE, p.images().get(1).posture(), "warped to supine");
+        assertEquals("warped/prone to supine hybrid", p.images().get(1).name());
+        assertEquals(Overlay.Posture.SUPINE, p.images().get(1).posture(), "on the supine grid");
+        assertEquals("labels/labels used", p.images().get(2).name());
+        assertEquals(Overlay.Posture.PRONE, p.images().get(2).posture(), "not on the supine grid");
+        assertEquals("prone image (input)", p.images().get(3).name());
         assertTrue(p.inputs().stream().anyMatch(r -> r.key().equals("Case") && r.value().equals("gui-test")));
     }
 
