@@ -20,6 +20,12 @@ public final class GaussianSmoothing {
     /** Kernel radius in standard deviations. */
     public static final double TRUNCATE_SIGMAS = 4.0;
 
+    /**
+     * Largest accepted σ in voxels; wider kernels are rejected rather than allocating buffers of
+     * millions of padding values (a smoothing that wide has flattened any image on a real grid).
+     */
+    public static final double MAX_SIGMA_VOXELS = 10_000;
+
     private GaussianSmoothing() {
     }
 
@@ -92,6 +98,10 @@ public final class GaussianSmoothing {
                 throw new IllegalArgumentException("sigma must be finite and >= 0 mm, got " + v + " (axis " + a + ")");
             }
             s[a] = v / grid.spacingMm(a);
+            if (s[a] > MAX_SIGMA_VOXELS) {
+                throw new IllegalArgumentException("sigma " + v + " mm is " + s[a] + " voxels along axis " + a
+                        + ", more than the limit of " + MAX_SIGMA_VOXELS + " voxels");
+            }
         }
         return s;
     }

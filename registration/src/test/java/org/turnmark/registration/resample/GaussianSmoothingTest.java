@@ -168,6 +168,8 @@ class GaussianSmoothingTest {
                 () -> GaussianSmoothing.smooth(a, a, g, -1.0));
         assertTrue(e.getMessage().contains("-1.0"), e.getMessage());
         assertThrows(IllegalArgumentException.class, () -> GaussianSmoothing.smooth(a, a, g, 1.0, 2.0));
+        assertThrows(IllegalArgumentException.class, () -> GaussianSmoothing.smooth(a, a, g, 1e12));
+        assertThrows(IllegalArgumentException.class, () -> GaussianSmoothing.smooth(a, a, g, Double.NaN));
         assertThrows(IllegalArgumentException.class, () -> GaussianSmoothing.smooth(a, new float[26], g, 1.0));
     }
 }
