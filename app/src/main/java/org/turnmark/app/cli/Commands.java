@@ -10,6 +10,7 @@ final class Commands {
 
     static void register(CommandLine cl) {
         // Each subcommand is added here as it is built.
+        cl.addSubcommand(new PlanCommand());
         cl.addSubcommand(new InspectCommand());
         cl.addSubcommand(new PhantomCommand());
         cl.addSubcommand(new RegisterCommand());

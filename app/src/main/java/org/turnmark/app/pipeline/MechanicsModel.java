@@ -33,8 +33,13 @@ import org.turnmark.mechanics.solve.SolverConfig;
  */
 public final class MechanicsModel {
 
-    /** Stop the reference iteration when no node is further than this from its prone position (mm): a fraction of the element size and of the image voxel. */
-    public static final double REFERENCE_TOLERANCE_MM = 0.25;
+    /** Stop the reference iteration when no node is further than this from its prone position (mm): a third of a 1.5 mm voxel, a tenth of a 5 mm element. */
+    public static final double REFERENCE_TOLERANCE_MM = 0.5;
+    /** Bounds of the Aitken relaxation factor: keeps an extrapolated update from overshooting into inverted elements. */
+    static final double MIN_RELAXATION = 0.3;
+    static final double MAX_RELAXATION = 1.5;
+    /** Halvings of a rejected reference update before giving up. */
+    static final int MAX_BACKOFFS = 6;
     /** Fixed-point iterations before the reference state is declared not converged. */
     public static final int MAX_REFERENCE_ITERATIONS = 40;
 
@@ -194,28 +199,64 @@ public final class MechanicsModel {
         double[] u = startU == null ? null : startU.clone();
         double res = Double.POSITIVE_INFINITY;
         SolveResult last = null;
+        double[] r = new double[x.length];
+        double[] rPrev = null;
+        double omega = 1.0;
+        double[] xPrev = null;
+        int backoffs = 0;
         for (int it = 1; it <= MAX_REFERENCE_ITERATIONS; it++) {
             progress.checkCancelled();
             HexMesh ref = proneMesh.withNodes(x);
-            last = new HyperelasticSolver(ref, mats, bc, cfg).solve(gProne, Progress.NONE, u);
+            try {
+                last = new HyperelasticSolver(ref, mats, bc, cfg).solve(gProne, Progress.NONE, u);
+            } catch (RuntimeException e) {
+                // An update that inverts a reference element (or a load the solver cannot carry) is
+                // rejected: go back to the last accepted X and take half the step.
+                if (e instanceof Progress.CancelledException || xPrev == null || ++backoffs > MAX_BACKOFFS) {
+                    throw e;
+                }
+                omega *= 0.5;
+                for (int i = 0; i < x.length; i++) {
+                    x[i] = xPrev[i] - omega * rPrev[i];
+                }
+                continue;
+            }
             u = last.u();
-            // Residual r = φ(X) − x_p; update X ← X − r (backward displacement).
+            // Residual r = φ(X) − x_p.
             res = 0;
             for (int i = 0; i < x.length; i += 3) {
-                double rx = x[i] + u[i] - xp[i];
-                double ry = x[i + 1] + u[i + 1] - xp[i + 1];
-                double rz = x[i + 2] + u[i + 2] - xp[i + 2];
-                res = Math.max(res, Math.sqrt(rx * rx + ry * ry + rz * rz));
-                x[i] -= rx;
-                x[i + 1] -= ry;
-                x[i + 2] -= rz;
+                r[i] = x[i] + u[i] - xp[i];
+                r[i + 1] = x[i + 1] + u[i + 1] - xp[i + 1];
+                r[i + 2] = x[i + 2] + u[i + 2] - xp[i + 2];
+                res = Math.max(res, Math.sqrt(r[i] * r[i] + r[i + 1] * r[i + 1] + r[i + 2] * r[i + 2]));
             }
             progress.update("reference state", Math.min(1, it / 10.0));
             if (res <= REFERENCE_TOLERANCE_MM) {
-                // The last update moved X by at most res; φ(X) of the solve above is within res of x_p.
+                // φ(X) of the solve above is within res of x_p; report X = x_p − u so the prone nodes are exact.
                 x = subtract(xp, u);
                 return new Reference(x, u, it, res, last, (System.nanoTime() - t0) / 1e9);
             }
+            // Aitken's dynamic relaxation of the backward-displacement update X ← X − ω r (Irons & Tuck,
+            // IJNME 1, 1969; Küttler & Wall, Comput Mech 43, 2008, eq. 44): ω_k = −ω_{k−1} r_{k−1}·Δr / |Δr|².
+            if (rPrev != null) {
+                double num = 0;
+                double den = 0;
+                for (int i = 0; i < r.length; i++) {
+                    double d = r[i] - rPrev[i];
+                    num += rPrev[i] * d;
+                    den += d * d;
+                }
+                if (den > 0) {
+                    omega = Math.max(MIN_RELAXATION, Math.min(MAX_RELAXATION, -omega * num / den));
+                }
+            } else {
+                rPrev = new double[r.length];
+            }
+            xPrev = x.clone();
+            for (int i = 0; i < x.length; i++) {
+                x[i] -= omega * r[i];
+            }
+            System.arraycopy(r, 0, rPrev, 0, r.length);
         }
         throw new ReferenceNotConvergedException(String.format(java.util.Locale.ROOT,
                 "reference state did not converge in %d iterations: a node is still %.2f mm from its prone position "
