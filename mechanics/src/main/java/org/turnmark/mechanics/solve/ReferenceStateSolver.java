@@ -16,8 +16,9 @@ import org.turnmark.mechanics.mesh.HexMesh;
  * ESAIM M2AN 47, 2013) accelerated by Anderson mixing of depth m (Anderson, J ACM 12, 1965;
  * Walker &amp; Ni, SIAM J Numer Anal 49, 2011, type II). Each forward solve is warm-started from the
  * previous displacement. Stops when max_n |φ(X)_n − x_n| ≤ tolerance (mm). If an accelerated
- * iterate cannot be solved (an element inverts), the plain fixed-point step is taken instead and the
- * history is cleared. Constrained nodes keep their loaded positions along the constrained
+ * iterate cannot be solved (an element inverts), a damped plain fixed-point step is taken instead and the
+ * history is cleared; the step is then relaxed (X ← X + β f with β halved, kept for later
+ * steps). Constrained nodes keep their loaded positions along the constrained
  * directions (fixed nodes stay put, sliding nodes stay on their plane).
  *
  * <p>{@link #reverseGravity} is the naive shortcut X = x + u_(−g)(x): exact only in linear
@@ -27,6 +28,13 @@ import org.turnmark.mechanics.mesh.HexMesh;
  * <p>Not thread safe; stateless between calls.
  */
 public final class ReferenceStateSolver {
+
+    /**
+     * Smallest step relaxation β before giving up: each failed forward solve (an element of the
+     * candidate reference inverts) halves β; five halvings (β = 1/32) cover strongly nonlinear
+     * first steps while bounding the wasted solves.
+     */
+    static final double MIN_RELAXATION = 1.0 / 32;
 
     private ReferenceStateSolver() {
     }
@@ -67,6 +75,7 @@ public final class ReferenceStateSolver {
         int linear = 0;
         double[] history = new double[rcfg.maxIterations()];
         double mismatch = Double.POSITIVE_INFINITY;
+        double relax = 1;
         for (int k = 0; k < rcfg.maxIterations(); k++) {
             prog.checkCancelled();
             SolveResult r;
@@ -74,16 +83,16 @@ public final class ReferenceStateSolver {
                 solver.moveReference(x);
                 r = solver.solve(gravityMs2, Progress.NONE, u);
             } catch (InvertedElementException | SolverDivergedException ex) {
-                if (xPrev == null || hist == 0) {
+                relax *= 0.5;
+                if (xPrev == null || relax < MIN_RELAXATION) {
                     throw new SolverDivergedException("reference-state iteration " + k
                             + ": forward solve failed: " + ex.getMessage(), Double.NaN, 0);
                 }
-                // fall back to the plain fixed-point step from the last solved iterate
+                // fall back to a damped plain fixed-point step from the last solved iterate
                 for (int i = 0; i < n; i++) {
-                    x[i] = xPrev[i] + fPrev[i];
+                    x[i] = xPrev[i] + relax * fPrev[i];
                 }
                 hist = 0;
-                xPrev = null;
                 k--;
                 continue;
             }
@@ -130,11 +139,12 @@ public final class ReferenceStateSolver {
             }
             System.arraycopy(x, 0, xPrev, 0, n);
             System.arraycopy(f, 0, fPrev, 0, n);
+            // damped Anderson: X_{k+1} = X_k + β f_k − (ΔX + β ΔF) γ
             double[] gamma = hist > 0 ? leastSquares(dF, hist, f) : new double[0];
             for (int i = 0; i < n; i++) {
-                double s = x[i] + f[i];
+                double s = x[i] + relax * f[i];
                 for (int j = 0; j < hist; j++) {
-                    s -= gamma[j] * (dX[j][i] + dF[j][i]);
+                    s -= gamma[j] * (dX[j][i] + relax * dF[j][i]);
                 }
                 x[i] = s;
             }
