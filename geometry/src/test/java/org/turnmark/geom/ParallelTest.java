@@ -42,6 +42,26 @@ class ParallelTest {
     }
 
     @Test
+    void threadCountFollowsTheEnclosingPool() throws Exception {
+        java.util.concurrent.ForkJoinPool pool = new java.util.concurrent.ForkJoinPool(3);
+        try {
+            assertEquals(3, pool.submit(Parallel::threads).get());
+        } finally {
+            pool.shutdown();
+        }
+    }
+
+    @Test
+    void blockExceptionsReachTheCaller() {
+        org.junit.jupiter.api.Assertions.assertThrows(IllegalStateException.class,
+                () -> Parallel.forEachBlock(64, Parallel.SEQUENTIAL_THRESHOLD, b -> {
+                    if (b == 17) {
+                        throw new IllegalStateException("block 17");
+                    }
+                }));
+    }
+
+    @Test
     void everyIndexIsVisitedOnce() {
         int n = 100_001;
         int[] hits = new int[n];

@@ -2,7 +2,7 @@ package org.turnmark.app.cli;
 
 /**
  * Applies {@code --threads N} (anywhere on the command line) before any parallel work starts, by
- * setting the common fork-join pool's parallelism, which {@code org.turnmark.geom.Parallel} uses.
+ * setting the {@code turnmark.threads} property that sizes {@code org.turnmark.geom.Parallel}'s pool.
  * Commands also declare the option so that it appears in their help.
  */
 final class ThreadsOption {
@@ -22,8 +22,7 @@ final class ThreadsOption {
                 try {
                     int t = Integer.parseInt(v.trim());
                     if (t >= 1) {
-                        System.setProperty("java.util.concurrent.ForkJoinPool.common.parallelism",
-                                Integer.toString(t));
+                        System.setProperty(org.turnmark.geom.Parallel.THREADS_PROPERTY, Integer.toString(t));
                     }
                 } catch (NumberFormatException e) {
                     // picocli reports the malformed value when it parses the option.
