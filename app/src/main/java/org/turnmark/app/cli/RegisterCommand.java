@@ -53,6 +53,7 @@ import picocli.CommandLine.Option;
  * {@code summary.json}.
  */
 @Command(name = "register",
+        mixinStandardHelpOptions = true,
         description = {
             "Registers a moving image to a fixed image with a diffeomorphic (stationary velocity field)",
             "demons-style optimisation over a multi-resolution pyramid; with --initial it refines a given",
@@ -122,6 +123,9 @@ final class RegisterCommand implements Callable<Integer> {
 
     @Option(names = "--pre-align", defaultValue = "none", description = "Global alignment first: none, translation, rigid or affine (default ${DEFAULT-VALUE}).")
     private String preAlign;
+
+    @Option(names = "--symmetric", description = "Symmetric (inverse-consistent) forces: forward and backward updates averaged.")
+    private boolean symmetric;
 
     @Option(names = "--out", required = true, description = "Output folder (written atomically).")
     private Path out;
@@ -217,7 +221,7 @@ final class RegisterCommand implements Callable<Integer> {
                     lnccRadiusMm == null ? d.lnccRadiusMm() : lnccRadiusMm,
                     parse(LnccWindow.class, lnccWindow, "--lncc-window"),
                     miBins == null ? d.miBins() : miBins, d.convergenceWindow(), d.convergenceTolerance(),
-                    parse(PreAlignment.class, preAlign, "--pre-align"));
+                    parse(PreAlignment.class, preAlign, "--pre-align"), symmetric);
         } catch (IllegalArgumentException e) {
             throw new UserInputException(e.getMessage(), e);
         }
@@ -279,6 +283,7 @@ final class RegisterCommand implements Callable<Integer> {
         c.put("lncc_window", cfg.lnccWindow().name().toLowerCase(Locale.ROOT));
         c.put("mi_bins", cfg.miBins());
         c.put("pre_alignment", cfg.preAlignment().name().toLowerCase(Locale.ROOT));
+        c.put("symmetric", cfg.symmetric());
         s.put("config", c);
         s.put("cost_initial", r.costInitial());
         s.put("cost_final", r.costFinal());

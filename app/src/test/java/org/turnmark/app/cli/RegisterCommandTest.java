@@ -161,6 +161,14 @@ class RegisterCommandTest {
     }
 
     @Test
+    void helpListsOptionsAndCaution() {
+        StringWriter o = new StringWriter();
+        int code = run(o, new StringWriter(), "register", "--help");
+        assertEquals(0, code);
+        assertTrue(o.toString().contains("--initial") && o.toString().contains("RESEARCH USE ONLY"), o.toString());
+    }
+
+    @Test
     void unknownMetricIsAUsageError() throws Exception {
         Path[] p = writePair();
         StringWriter e = new StringWriter();

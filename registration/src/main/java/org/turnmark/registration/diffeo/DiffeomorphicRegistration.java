@@ -39,6 +39,12 @@ import org.turnmark.registration.volume.Volume;
  * starting map; if it is not lower, the result says so ({@link RegistrationResult#improved()} false)
  * and returns the starting map (v = 0) rather than a worse one.
  *
+ * <p><b>Symmetric variant</b> ({@link RegistrationConfig#symmetric()}): at each level the moving
+ * image is sampled once through A ∘ φ₀ onto the level grid (M₀) and the velocity is updated with
+ * forward and backward forces, v ← ½ (Z(v, δ_f) − Z(−v, δ_b)) (Vercauteren et al., MICCAI 2008),
+ * so that swapping the images gives (approximately) the inverse residual. The map convention is
+ * unchanged.
+ *
  * <p><b>Bad input.</b> Non-finite voxels, empty masks, constant images and an initial field on another
  * grid are rejected by {@link RegistrationInput} and here with {@link IllegalArgumentException}s naming
  * the image; images that do not overlap under the starting map raise one as well.
@@ -99,8 +105,8 @@ public final class DiffeomorphicRegistration {
             float[] mov = movingAtLevel(in.moving(), fine, level);
             double levelScale = Math.pow(2, level);
             LevelSolver solver = new LevelSolver(config, g, f, m, mov, in.moving().grid(), movingMaskData,
-                    in.initial(), null, metricFor(g, f, m, mov, movingMaskBytes, in), config.maxStepMm() * levelScale,
-                    levelScale);
+                    in.initial(), null, metricFor(g, f, m, mov, movingMaskBytes, in, false), null,
+                    config.maxStepMm() * levelScale, levelScale);
             checkOverlap(solver, g, in);
             p.update("pre-alignment", 0);
             affine = PreAligner.align(solver, g, centreOfMass(f, m, g),
@@ -114,10 +120,11 @@ public final class DiffeomorphicRegistration {
             float[] f = Pyramid.image(in.fixed(), g, sigmaFixed);
             byte[] m = Pyramid.mask(in.fixedMask(), g);
             float[] mov = movingAtLevel(in.moving(), fine, level);
-            SimilarityMetric metric = metricFor(g, f, m, mov, movingMaskBytes, in);
+            SimilarityMetric metric = metricFor(g, f, m, mov, movingMaskBytes, in, false);
+            SimilarityMetric back = config.symmetric() ? metricFor(g, f, m, mov, movingMaskBytes, in, true) : null;
             double levelScale = Math.pow(2, level);
             LevelSolver solver = new LevelSolver(config, g, f, m, mov, in.moving().grid(), movingMaskData,
-                    in.initial(), affine, metric, config.maxStepMm() * levelScale, levelScale);
+                    in.initial(), affine, metric, back, config.maxStepMm() * levelScale, levelScale);
             Progress lp = p.sub("registration level " + (li + 1) + "/" + levels, (double) li / levels,
                     (double) (li + 1) / levels);
             if (li == 0) {
@@ -161,16 +168,21 @@ public final class DiffeomorphicRegistration {
         return out;
     }
 
-    private SimilarityMetric metricFor(Grid3 g, float[] f, byte[] m, float[] mov, byte[] movMask, RegistrationInput in) {
+    /** The level's metric; {@code swapped} gives the backward one (moving image as reference). */
+    private SimilarityMetric metricFor(Grid3 g, float[] f, byte[] m, float[] mov, byte[] movMask, RegistrationInput in,
+                                       boolean swapped) {
+        IntensityRange rf = config.metric() == org.turnmark.registration.metric.MetricKind.SSD ? null
+                : IntensityRange.of(f, m, in.fixedName());
+        IntensityRange rm = config.metric() == org.turnmark.registration.metric.MetricKind.SSD ? null
+                : IntensityRange.of(mov, movMask, in.movingName());
         switch (config.metric()) {
             case SSD:
                 return new SumOfSquaredDifferences();
             case LNCC:
-                return new LocalCorrelation(g, config.lnccRadiusMm(), config.lnccWindow(),
-                        IntensityRange.of(f, m, in.fixedName()), IntensityRange.of(mov, movMask, in.movingName()));
+                return new LocalCorrelation(g, config.lnccRadiusMm(), config.lnccWindow(), swapped ? rm : rf,
+                        swapped ? rf : rm);
             case MI:
-                return new MattesMutualInformation(config.miBins(), IntensityRange.of(f, m, in.fixedName()),
-                        IntensityRange.of(mov, movMask, in.movingName()));
+                return new MattesMutualInformation(config.miBins(), swapped ? rm : rf, swapped ? rf : rm);
             default:
                 throw new IllegalStateException("unknown metric " + config.metric());
         }

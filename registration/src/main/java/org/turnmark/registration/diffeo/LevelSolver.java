@@ -35,7 +35,12 @@ import org.turnmark.registration.volume.VectorField;
  * <li>the level returns the velocity with the lowest cost seen, so its cost never ends above its
  *     start.</li>
  * </ol>
- * Forces are only taken at voxels inside the similarity mask whose six neighbours are inside the
+ * <b>Symmetric variant</b> (after Vercauteren et al., MICCAI 2008, symmetric log-domain demons): the
+ * moving image is first sampled through A ∘ φ₀ onto the level grid (M₀); a forward force from F
+ * against M₀ ∘ exp(v) and a backward force from M₀ against F ∘ exp(−v) give the update
+ * {@code v ← ½ (Z(v, δ_f) − Z(−v, δ_b))}; the monitored cost stays the forward one.
+ *
+ * <p>Forces are only taken at voxels inside the similarity mask whose six neighbours are inside the
  * moving image (the gradient there is not polluted by the zero fill).
  *
  * <p>Keeps grid-sized workspaces; not thread safe; kernels parallel through {@link Parallel}.
@@ -59,6 +64,8 @@ final class LevelSolver {
     private final VectorField initial;
     private Affine3D affine;
     private final SimilarityMetric metric;
+    private final SimilarityMetric backMetric;
+    private final boolean symmetric;
     private final double stepMm;
     private final double levelScale;
     private final FieldDerivatives derivatives;
@@ -76,6 +83,19 @@ final class LevelSolver {
     private final byte[] valid;
     private final byte[] mask;
     private long maskCount;
+    // Symmetric mode only (null otherwise).
+    private final float[] fixedMaskFloat;
+    private float[] m0;
+    private float[] m0Mask;
+    private byte[] m0MaskBytes;
+    private final VectorField sInv;
+    private final VectorField negV;
+    private final VectorField vb;
+    private final VectorField dirB;
+    private final float[] backWarped;
+    private final float[] dcostB;
+    private final byte[] validB;
+    private final byte[] maskB;
 
     /**
      * @param fixedMask   level fixed mask (0/1) or null
@@ -84,11 +104,13 @@ final class LevelSolver {
      * @param initial     initial displacement on the finest fixed grid or null
      * @param affine      fixed world → moving world after φ₀, or null
      * @param stepMm      longest update vector at this level (mm)
+     * @param backMetric  for the symmetric variant: the metric with the roles of the images swapped
+     *                    (M₀ as reference, F ∘ exp(−v) as warped); null for forward forces only
      * @param levelScale  factor applied to the configured smoothing widths at this level (2^level)
      */
     LevelSolver(RegistrationConfig cfg, Grid3 grid, float[] fixed, byte[] fixedMask, float[] moving, Grid3 movingGrid,
-                float[] movingMask, VectorField initial, Affine3D affine, SimilarityMetric metric, double stepMm,
-                double levelScale) {
+                float[] movingMask, VectorField initial, Affine3D affine, SimilarityMetric metric,
+                SimilarityMetric backMetric, double stepMm, double levelScale) {
         this.cfg = cfg;
         this.grid = grid;
         this.fixed = fixed;
@@ -99,6 +121,8 @@ final class LevelSolver {
         this.initial = initial;
         this.affine = affine;
         this.metric = metric;
+        this.backMetric = backMetric;
+        this.symmetric = backMetric != null;
         this.stepMm = stepMm;
         this.levelScale = levelScale;
         this.derivatives = new FieldDerivatives(grid);
@@ -115,6 +139,32 @@ final class LevelSolver {
         dcost = new float[n];
         valid = new byte[n];
         mask = new byte[n];
+        if (symmetric) {
+            fixedMaskFloat = fixedMask == null ? null : new float[n];
+            if (fixedMaskFloat != null) {
+                for (int q = 0; q < n; q++) {
+                    fixedMaskFloat[q] = fixedMask[q];
+                }
+            }
+            sInv = VectorField.zeros(grid);
+            negV = VectorField.zeros(grid);
+            vb = VectorField.zeros(grid);
+            dirB = VectorField.zeros(grid);
+            backWarped = new float[n];
+            dcostB = new float[n];
+            validB = new byte[n];
+            maskB = new byte[n];
+        } else {
+            fixedMaskFloat = null;
+            sInv = null;
+            negV = null;
+            vb = null;
+            dirB = null;
+            backWarped = null;
+            dcostB = null;
+            validB = null;
+            maskB = null;
+        }
     }
 
     /** Replaces the affine applied after φ₀ (pre-alignment search); null for identity. */
@@ -142,11 +192,18 @@ final class LevelSolver {
     double evaluate(VectorField vel) {
         int squarings = VelocityFields.squaringsFor(vel);
         VelocityFields.exp(vel, squarings, s, scratch);
-        if (initial != null) {
-            DisplacementFields.compose(initial, s, total);
+        if (symmetric) {
+            prepareSymmetric();
+            Resampler.resampleInto(m0, grid, grid, null, s, Interp.LINEAR, Outside.CONSTANT, 0, warped);
+            maskCount = computeMasks(s, null, grid, m0Mask, fixedMask, valid, mask);
+        } else {
+            if (initial != null) {
+                DisplacementFields.compose(initial, s, total);
+            }
+            Resampler.resampleInto(moving, movingGrid, grid, affine, total, Interp.LINEAR, Outside.CONSTANT, 0,
+                    warped);
+            maskCount = computeMasks(total, affine, movingGrid, movingMask, fixedMask, valid, mask);
         }
-        Resampler.resampleInto(moving, movingGrid, grid, affine, total, Interp.LINEAR, Outside.CONSTANT, 0, warped);
-        maskCount = computeMasks();
         if (maskCount == 0) {
             throw new IllegalArgumentException("the images do not overlap inside the masks at this level: no fixed voxel "
                     + "maps inside the moving image (fixed grid " + grid + ", moving grid " + movingGrid + ")");
@@ -155,21 +212,67 @@ final class LevelSolver {
         if (!Double.isFinite(c)) {
             throw new IllegalStateException("similarity cost became " + c + " (" + metric.kind() + ")");
         }
+        if (symmetric) {
+            // Backward half: F ∘ exp(−v) against the pre-warped moving image, in its space.
+            VelocityFields.scale(vel, -1f, negV);
+            VelocityFields.exp(negV, squarings, sInv, scratch);
+            Resampler.resampleInto(fixed, grid, grid, null, sInv, Interp.LINEAR, Outside.CONSTANT, 0, backWarped);
+            long nb = computeMasks(sInv, null, grid, fixedMaskFloat, m0MaskBytes, validB, maskB);
+            if (nb > 0) {
+                double cb = backMetric.costAndDerivative(m0, backWarped, maskB, dcostB);
+                if (!Double.isFinite(cb)) {
+                    throw new IllegalStateException("backward similarity cost became " + cb);
+                }
+            } else {
+                java.util.Arrays.fill(dcostB, 0f);
+            }
+        }
         return c;
     }
 
-    private long computeMasks() {
+    /**
+     * Symmetric mode: samples the moving image once through A ∘ φ₀ onto the level grid (M₀) with its
+     * mask; the symmetric iterations then register F and M₀ on one grid.
+     */
+    private void prepareSymmetric() {
+        if (m0 != null) {
+            return;
+        }
+        int n = grid.size();
+        VectorField u0 = initial == null ? VectorField.zeros(grid) : DisplacementFields.resample(initial, grid);
+        float[] w = new float[n];
+        Resampler.resampleInto(moving, movingGrid, grid, affine, u0, Interp.LINEAR, Outside.CONSTANT, 0, w);
+        byte[] in = new byte[n];
+        byte[] mk = new byte[n];
+        computeMasks(u0, affine, movingGrid, movingMask, null, in, mk);
+        float[] mf = new float[n];
+        for (int q = 0; q < n; q++) {
+            mf[q] = mk[q];
+        }
+        m0MaskBytes = mk;
+        m0Mask = mf;
+        m0 = w;
+    }
+
+    /**
+     * Marks, for each voxel x of the level grid, whether {@code toSrc(x + disp(x))} lies inside the
+     * source grid ({@code validOut}) and whether it is also inside both masks ({@code maskOut}):
+     * {@code ownMask} on the level grid (byte 0/1, null = all) and {@code srcMask} sampled (nearest) on
+     * the source grid (float, &gt; 0.5 inside, null = all). Returns the number of mask voxels.
+     */
+    private long computeMasks(VectorField disp, Affine3D toSrc, Grid3 src, float[] srcMask, byte[] ownMask,
+                              byte[] validOut, byte[] maskOut) {
         final int nx = grid.nx();
         final int ny = grid.ny();
-        final int mx = movingGrid.nx();
-        final int my = movingGrid.ny();
-        final int mz = movingGrid.nz();
-        Affine3D a = affine == null ? Affine3D.identity() : affine;
-        final double[] toMov = movingGrid.worldToVoxel().compose(a).toRowMajor();
+        final int mx = src.nx();
+        final int my = src.ny();
+        final int mz = src.nz();
+        Affine3D a = toSrc == null ? Affine3D.identity() : toSrc;
+        final double[] toMov = src.worldToVoxel().compose(a).toRowMajor();
         final double[] vw = grid.voxelToWorld().toRowMajor();
-        final float[] ux = total.x();
-        final float[] uy = total.y();
-        final float[] uz = total.z();
+        final float[] ux = disp.x();
+        final float[] uy = disp.y();
+        final float[] uz = disp.z();
         final double lo = -INSIDE_TOLERANCE_VOXELS;
         long[] counts = new long[grid.nz()];
         Parallel.forEachBlock(grid.nz(), grid.size(), k -> {
@@ -185,12 +288,12 @@ final class LevelSolver {
                     double ck = toMov[8] * x + toMov[9] * y + toMov[10] * z + toMov[11];
                     boolean in = ci >= lo && cj >= lo && ck >= lo && ci <= mx - 1 - lo && cj <= my - 1 - lo
                             && ck <= mz - 1 - lo;
-                    valid[n] = (byte) (in ? 1 : 0);
-                    boolean m = in && (fixedMask == null || fixedMask[n] != 0);
-                    if (m && movingMask != null) {
-                        m = Interpolation.nearest(movingMask, mx, my, mz, ci, cj, ck, Outside.CLAMP, 0) > 0.5;
+                    validOut[n] = (byte) (in ? 1 : 0);
+                    boolean m = in && (ownMask == null || ownMask[n] != 0);
+                    if (m && srcMask != null) {
+                        m = Interpolation.nearest(srcMask, mx, my, mz, ci, cj, ck, Outside.CLAMP, 0) > 0.5;
                     }
-                    mask[n] = (byte) (m ? 1 : 0);
+                    maskOut[n] = (byte) (m ? 1 : 0);
                     if (m) {
                         c++;
                     }
@@ -205,16 +308,20 @@ final class LevelSolver {
         return total;
     }
 
-    /** Fills {@code dir} with the regularised force of the current state; returns its largest length (mm). */
-    private double force() {
+    /**
+     * Fills {@code out} with the regularised force for reference image {@code ref} against the warped
+     * image {@code w} (mask, validity and ∂cost/∂W from the last evaluation); returns its largest
+     * length (mm).
+     */
+    private double force(float[] ref, float[] w, byte[] mk, byte[] ok, float[] dc, VectorField out) {
         final int nx = grid.nx();
         final int ny = grid.ny();
         final int nz = grid.nz();
         final boolean demons = metric.kind() == MetricKind.SSD;
         final double sigmaX2 = 4 * stepMm * stepMm;
-        final float[] fx = dir.x();
-        final float[] fy = dir.y();
-        final float[] fz = dir.z();
+        final float[] fx = out.x();
+        final float[] fy = out.y();
+        final float[] fz = out.z();
         final int slice = nx * ny;
         Parallel.forEachBlock(nz, (long) grid.size() * 4, k -> {
             double[] gw = new double[3];
@@ -225,17 +332,17 @@ final class LevelSolver {
                     double ox = 0;
                     double oy = 0;
                     double oz = 0;
-                    if (mask[n] != 0
-                            && (i == 0 || valid[n - 1] != 0) && (i == nx - 1 || valid[n + 1] != 0)
-                            && (j == 0 || valid[n - nx] != 0) && (j == ny - 1 || valid[n + nx] != 0)
-                            && (k == 0 || valid[n - slice] != 0) && (k == nz - 1 || valid[n + slice] != 0)) {
-                        derivatives.gradient(warped, i, j, k, gw);
+                    if (mk[n] != 0
+                            && (i == 0 || ok[n - 1] != 0) && (i == nx - 1 || ok[n + 1] != 0)
+                            && (j == 0 || ok[n - nx] != 0) && (j == ny - 1 || ok[n + nx] != 0)
+                            && (k == 0 || ok[n - slice] != 0) && (k == nz - 1 || ok[n + slice] != 0)) {
+                        derivatives.gradient(w, i, j, k, gw);
                         if (demons) {
-                            derivatives.gradient(fixed, i, j, k, gf);
+                            derivatives.gradient(ref, i, j, k, gf);
                             double g0 = 0.5 * (gw[0] + gf[0]);
                             double g1 = 0.5 * (gw[1] + gf[1]);
                             double g2 = 0.5 * (gw[2] + gf[2]);
-                            double diff = (double) fixed[n] - warped[n];
+                            double diff = (double) ref[n] - w[n];
                             double den = g0 * g0 + g1 * g1 + g2 * g2 + diff * diff / sigmaX2;
                             if (den > 1e-12) {
                                 double c = diff / den;
@@ -244,7 +351,7 @@ final class LevelSolver {
                                 oz = c * g2;
                             }
                         } else {
-                            double c = -dcost[n];
+                            double c = -dc[n];
                             ox = c * gw[0];
                             oy = c * gw[1];
                             oz = c * gw[2];
@@ -256,10 +363,10 @@ final class LevelSolver {
                 }
             }
         });
-        smooth(dir, cfg.fluidSigmaMm() * levelScale, cfg.fluidWeight());
-        double max = DisplacementFields.maxNormMm(dir);
+        smooth(out, cfg.fluidSigmaMm() * levelScale, cfg.fluidWeight());
+        double max = DisplacementFields.maxNormMm(out);
         if (!demons && max > 0) {
-            VelocityFields.scale(dir, (float) (stepMm / max), dir);
+            VelocityFields.scale(out, (float) (stepMm / max), out);
             max = stepMm;
         }
         return max;
@@ -311,13 +418,25 @@ final class LevelSolver {
         StopReason reason = StopReason.ITERATIONS;
         while (iterations < maxIter) {
             progress.checkCancelled();
-            double maxForce = force();
+            double maxForce = force(fixed, warped, mask, valid, dcost, dir);
+            if (symmetric) {
+                maxForce = Math.max(maxForce, force(m0, backWarped, maskB, validB, dcostB, dirB));
+            }
             if (!(maxForce > 0)) {
                 reason = StopReason.NO_DESCENT;
                 break;
             }
             VelocityFields.scale(dir, (float) scale, delta);
             VelocityFields.compose(v, delta, cfg.updateRule(), trial);
+            if (symmetric) {
+                // v ← ½ (Z(v, δ_f) − Z(−v, δ_b)) (symmetric log-domain update).
+                VelocityFields.scale(dirB, (float) scale, delta);
+                VelocityFields.scale(v, -1f, negV);
+                VelocityFields.compose(negV, delta, cfg.updateRule(), vb);
+                VelocityFields.scale(vb, -1f, vb);
+                VelocityFields.add(trial, vb, trial);
+                VelocityFields.scale(trial, 0.5f, trial);
+            }
             smooth(trial, cfg.diffusionSigmaMm() * levelScale, cfg.diffusionWeight());
             double c = evaluate(trial);
             VectorField t = v;

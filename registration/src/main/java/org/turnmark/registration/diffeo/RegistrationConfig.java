@@ -30,11 +30,13 @@ import org.turnmark.registration.transform.UpdateRule;
  * @param convergenceWindow   number of accepted iterations over which the cost decrease is measured (≥ 1)
  * @param convergenceTolerance relative cost decrease over that window below which a level stops (≥ 0)
  * @param preAlignment        optional global alignment before the deformable stage
+ * @param symmetric           symmetric (inverse-consistent) variant: forward and backward forces,
+ *                            update ½ (Z(v, δ_f) − Z(−v, δ_b)) (see {@link DiffeomorphicRegistration})
  */
 public record RegistrationConfig(MetricKind metric, int[] iterations, double fluidSigmaMm, double diffusionSigmaMm,
                                  double fluidWeight, double diffusionWeight, double maxStepMm, UpdateRule updateRule,
                                  double lnccRadiusMm, LnccWindow lnccWindow, int miBins, int convergenceWindow,
-                                 double convergenceTolerance, PreAlignment preAlignment) {
+                                 double convergenceTolerance, PreAlignment preAlignment, boolean symmetric) {
 
     /** Most pyramid levels accepted. */
     public static final int MAX_LEVELS = 6;
@@ -71,11 +73,11 @@ public record RegistrationConfig(MetricKind metric, int[] iterations, double flu
     /**
      * Defaults for breast MRI at 1–2 mm: LNCC with a 4 mm box window, three levels (about 4, 2 and 1×
      * the finest spacing) with 60, 40 and 20 iterations, update σ 2 mm, velocity σ 1.5 mm, steps of
-     * at most 1 mm at the finest level, BCH composition, no pre-alignment.
+     * at most 1 mm at the finest level, BCH composition, no pre-alignment, forward forces only.
      */
     public static RegistrationConfig defaults() {
         return new RegistrationConfig(MetricKind.LNCC, new int[] {60, 40, 20}, 2.0, 1.5, 1.0, 1.0, 1.0,
-                UpdateRule.BCH, 4.0, LnccWindow.BOX, 32, 5, 1e-4, PreAlignment.NONE);
+                UpdateRule.BCH, 4.0, LnccWindow.BOX, 32, 5, 1e-4, PreAlignment.NONE, false);
     }
 
     /** Number of pyramid levels. */
@@ -92,60 +94,66 @@ public record RegistrationConfig(MetricKind metric, int[] iterations, double flu
     public RegistrationConfig withMetric(MetricKind m) {
         return new RegistrationConfig(m, iterations, fluidSigmaMm, diffusionSigmaMm, fluidWeight, diffusionWeight,
                 maxStepMm, updateRule, lnccRadiusMm, lnccWindow, miBins, convergenceWindow, convergenceTolerance,
-                preAlignment);
+                preAlignment, symmetric);
     }
 
     public RegistrationConfig withIterations(int... its) {
         return new RegistrationConfig(metric, its, fluidSigmaMm, diffusionSigmaMm, fluidWeight, diffusionWeight,
                 maxStepMm, updateRule, lnccRadiusMm, lnccWindow, miBins, convergenceWindow, convergenceTolerance,
-                preAlignment);
+                preAlignment, symmetric);
     }
 
     public RegistrationConfig withSmoothing(double fluidSigma, double diffusionSigma) {
         return new RegistrationConfig(metric, iterations, fluidSigma, diffusionSigma, fluidWeight, diffusionWeight,
                 maxStepMm, updateRule, lnccRadiusMm, lnccWindow, miBins, convergenceWindow, convergenceTolerance,
-                preAlignment);
+                preAlignment, symmetric);
     }
 
     public RegistrationConfig withWeights(double fluid, double diffusion) {
         return new RegistrationConfig(metric, iterations, fluidSigmaMm, diffusionSigmaMm, fluid, diffusion,
                 maxStepMm, updateRule, lnccRadiusMm, lnccWindow, miBins, convergenceWindow, convergenceTolerance,
-                preAlignment);
+                preAlignment, symmetric);
     }
 
     public RegistrationConfig withMaxStepMm(double step) {
         return new RegistrationConfig(metric, iterations, fluidSigmaMm, diffusionSigmaMm, fluidWeight, diffusionWeight,
                 step, updateRule, lnccRadiusMm, lnccWindow, miBins, convergenceWindow, convergenceTolerance,
-                preAlignment);
+                preAlignment, symmetric);
     }
 
     public RegistrationConfig withUpdateRule(UpdateRule rule) {
         return new RegistrationConfig(metric, iterations, fluidSigmaMm, diffusionSigmaMm, fluidWeight, diffusionWeight,
                 maxStepMm, rule, lnccRadiusMm, lnccWindow, miBins, convergenceWindow, convergenceTolerance,
-                preAlignment);
+                preAlignment, symmetric);
     }
 
     public RegistrationConfig withLncc(double radiusMm, LnccWindow window) {
         return new RegistrationConfig(metric, iterations, fluidSigmaMm, diffusionSigmaMm, fluidWeight, diffusionWeight,
                 maxStepMm, updateRule, radiusMm, window, miBins, convergenceWindow, convergenceTolerance,
-                preAlignment);
+                preAlignment, symmetric);
     }
 
     public RegistrationConfig withMiBins(int bins) {
         return new RegistrationConfig(metric, iterations, fluidSigmaMm, diffusionSigmaMm, fluidWeight, diffusionWeight,
                 maxStepMm, updateRule, lnccRadiusMm, lnccWindow, bins, convergenceWindow, convergenceTolerance,
-                preAlignment);
+                preAlignment, symmetric);
     }
 
     public RegistrationConfig withConvergence(int window, double tolerance) {
         return new RegistrationConfig(metric, iterations, fluidSigmaMm, diffusionSigmaMm, fluidWeight, diffusionWeight,
-                maxStepMm, updateRule, lnccRadiusMm, lnccWindow, miBins, window, tolerance, preAlignment);
+                maxStepMm, updateRule, lnccRadiusMm, lnccWindow, miBins, window, tolerance, preAlignment, symmetric);
     }
 
     public RegistrationConfig withPreAlignment(PreAlignment p) {
         return new RegistrationConfig(metric, iterations, fluidSigmaMm, diffusionSigmaMm, fluidWeight, diffusionWeight,
                 maxStepMm, updateRule, lnccRadiusMm, lnccWindow, miBins, convergenceWindow, convergenceTolerance,
-                p);
+                p, symmetric);
+    }
+
+    public RegistrationConfig withSymmetric(boolean sym) {
+        return new RegistrationConfig(metric, iterations, fluidSigmaMm, diffusionSigmaMm, fluidWeight, diffusionWeight,
+                maxStepMm, updateRule, lnccRadiusMm, lnccWindow, miBins, convergenceWindow, convergenceTolerance,
+                preAlignment, sym);
     }
 
     @Override
@@ -159,14 +167,14 @@ public record RegistrationConfig(MetricKind metric, int[] iterations, double flu
                 && diffusionWeight == c.diffusionWeight && maxStepMm == c.maxStepMm && updateRule == c.updateRule
                 && lnccRadiusMm == c.lnccRadiusMm && lnccWindow == c.lnccWindow && miBins == c.miBins
                 && convergenceWindow == c.convergenceWindow && convergenceTolerance == c.convergenceTolerance
-                && preAlignment == c.preAlignment;
+                && preAlignment == c.preAlignment && symmetric == c.symmetric;
     }
 
     @Override
     public int hashCode() {
         return 31 * Arrays.hashCode(iterations) + java.util.Objects.hash(metric, fluidSigmaMm, diffusionSigmaMm,
                 fluidWeight, diffusionWeight, maxStepMm, updateRule, lnccRadiusMm, lnccWindow, miBins,
-                convergenceWindow, convergenceTolerance, preAlignment);
+                convergenceWindow, convergenceTolerance, preAlignment, symmetric);
     }
 
     @Override
@@ -176,7 +184,7 @@ public record RegistrationConfig(MetricKind metric, int[] iterations, double flu
                 + fluidWeight + ", diffusionWeight=" + diffusionWeight + ", maxStepMm=" + maxStepMm + ", updateRule="
                 + updateRule + ", lnccRadiusMm=" + lnccRadiusMm + ", lnccWindow=" + lnccWindow + ", miBins=" + miBins
                 + ", convergenceWindow=" + convergenceWindow + ", convergenceTolerance=" + convergenceTolerance
-                + ", preAlignment=" + preAlignment + "]";
+                + ", preAlignment=" + preAlignment + ", symmetric=" + symmetric + "]";
     }
 
     private static void nonNegative(String name, double v) {
