@@ -74,7 +74,7 @@ public final class ReportPdf {
         }
         p.gap(6);
         p.line("Inputs", 11, true);
-        p.line("prone image: " + plan.input().proneImage(), 8, false);
+        p.wrapped("prone image: " + plan.input().proneImage(), 8);
         p.line("supine image: " + (plan.input().supineImage() == null ? "none (mechanics-only plan)" : plan.input().supineImage()), 8, false);
         p.line("labels: " + (plan.input().labels() == null ? "automatic segmentation (check the pictures)" : plan.input().labels()), 8, false);
         for (Map.Entry<String, String> e : plan.inputSha256().entrySet()) {
@@ -84,8 +84,8 @@ public final class ReportPdf {
         p.line(String.format(Locale.ROOT, "model: %d hexahedra, %d nodes, element %.1f mm, chest wall %s (%d nodes)",
                 m.elements(), m.nodes(), m.elementSizeMm(), m.chestWall(), m.chestWallNodes()), 8, false);
         PlanResult.UncertaintySummary u = plan.uncertainty();
-        p.line(String.format(Locale.ROOT, "uncertainty: %d of %d %s prior samples solved; added in closed form: %s",
-                u.completed(), u.samples(), u.design(), String.join("; ", u.addedAnalytically())), 8, false);
+        p.wrapped(String.format(Locale.ROOT, "uncertainty: %d of %d %s prior samples solved; added in closed form: %s",
+                u.completed(), u.samples(), u.design(), String.join("; ", u.addedAnalytically())), 8);
         p.gap(6);
         p.line("Predicted supine lesion centroids (world RAS mm)", 11, true);
         for (PlanResult.LesionResult l : plan.lesions()) {
@@ -97,8 +97,8 @@ public final class ReportPdf {
                         pr.ellipsoid95().semiAxesMm()[1], pr.ellipsoid95().semiAxesMm()[2]);
                 String err = pr.errorVsTruthMm() == null ? "" : String.format(Locale.ROOT, ", error vs truth %.1f mm",
                         pr.errorVsTruthMm());
-                p.line(String.format(Locale.ROOT, "  %s [%s]: (%.1f, %.1f, %.1f) mm; %s%s", pr.method(), pr.frame(),
-                        pr.positionRasMm()[0], pr.positionRasMm()[1], pr.positionRasMm()[2], ell, err), 8, false);
+                p.wrapped(String.format(Locale.ROOT, "  %s [%s]: (%.1f, %.1f, %.1f) mm; %s%s", pr.method(), pr.frame(),
+                        pr.positionRasMm()[0], pr.positionRasMm()[1], pr.positionRasMm()[2], ell, err), 8);
             }
         }
         p.gap(6);
@@ -176,8 +176,8 @@ public final class ReportPdf {
                 bottom.add(s.image());
             }
             p.images(bottom, 165);
-            p.line("Marks: blue mechanics-only, green hybrid, orange registration-only; outlines: sections of the "
-                    + "95 % ellipsoids (probability content 95 % in 3-D).", 8, false);
+            p.wrapped("Marks: yellow the prone centroid; blue mechanics-only, green hybrid, orange registration-only; "
+                    + "outlines: sections of the 95 % ellipsoids (probability content 95 % in 3-D).", 8);
         }
     }
 
