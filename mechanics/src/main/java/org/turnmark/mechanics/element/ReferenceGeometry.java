@@ -24,11 +24,11 @@ public final class ReferenceGeometry {
 
     private static final double G = 1 / Math.sqrt(3);
     /** Natural coordinates of the 8 Gauss points (node order scaled by 1/√3). */
-    public static final double[] XI = {-G, G, G, -G, -G, G, G, -G};
+    static final double[] XI = {-G, G, G, -G, -G, G, G, -G};
     /** See {@link #XI}. */
-    public static final double[] ETA = {-G, -G, G, G, -G, -G, G, G};
+    static final double[] ETA = {-G, -G, G, G, -G, -G, G, G};
     /** See {@link #XI}. */
-    public static final double[] ZETA = {-G, -G, -G, -G, G, G, G, G};
+    static final double[] ZETA = {-G, -G, -G, -G, G, G, G, G};
 
     private static final int BLOCK = 512;
 
