@@ -21,6 +21,9 @@ class PlannerTest {
     @Test
     void mechanicsOnlyPlanWithoutSupineImage() throws IOException {
         Path c = SyntheticCase.write(dir, 2, true);
+        // A nipple 30 mm inside the breast, not on the skin: planned with a warning.
+        Files.writeString(c, Files.readString(c).replace("\"model\"",
+                "\"nipples\": [{\"side\": \"left\", \"position_ras_mm\": [-40, 10, 0]}], \"model\""));
         Planner.Outcome o = new Planner().run(new CaseFileReader().read(c), Planner.Options.DEFAULT, Progress.NONE);
         PlanResult r = o.result();
         PlanResult.LesionResult l = r.lesions().get(0);
@@ -32,6 +35,8 @@ class PlannerTest {
         assertTrue(m.displacementMm()[1] < -1, "lesion moves posteriorly: " + m.displacementMm()[1]);
         assertNotNull(m.ellipsoid95());
         assertTrue(r.warnings().stream().anyMatch(w -> w.contains("no supine image")));
+        assertTrue(r.warnings().stream().anyMatch(w -> w.contains("left nipple") && w.contains("from the skin")),
+                r.warnings().toString());
     }
 
     @Test
