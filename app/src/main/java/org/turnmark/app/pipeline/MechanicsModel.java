@@ -15,6 +15,9 @@ import org.turnmark.mechanics.mesh.MeshSurface;
 import org.turnmark.mechanics.mesh.MesherConfig;
 import org.turnmark.mechanics.solve.HyperelasticSolver;
 import org.turnmark.mechanics.solve.NodeConstraints;
+import org.turnmark.mechanics.solve.ReferenceStateConfig;
+import org.turnmark.mechanics.solve.ReferenceStateResult;
+import org.turnmark.mechanics.solve.ReferenceStateSolver;
 import org.turnmark.mechanics.solve.SolveResult;
 import org.turnmark.mechanics.solve.SolverConfig;
 
@@ -261,6 +264,23 @@ public final class MechanicsModel {
         throw new ReferenceNotConvergedException(String.format(java.util.Locale.ROOT,
                 "reference state did not converge in %d iterations: a node is still %.2f mm from its prone position "
                         + "(tolerance %.2f mm)", MAX_REFERENCE_ITERATIONS, res, REFERENCE_TOLERANCE_MM));
+    }
+
+    /** Anderson depth for the cold-start reference state (the mechanics module's default). */
+    static final int ANDERSON_DEPTH = 5;
+
+    /**
+     * The nominal (cold-start) reference state: the mechanics module's Anderson-accelerated
+     * fixed point ({@link ReferenceStateSolver}) to {@link #REFERENCE_TOLERANCE_MM}, then one
+     * warm-started pass of {@link #reference} for the solve diagnostics reported with the plan.
+     */
+    public Reference referenceFromProne(MaterialTable mats, NodeConstraints bc, double[] gProne, Progress progress) {
+        long t0 = System.nanoTime();
+        ReferenceStateResult rs = ReferenceStateSolver.solve(proneMesh, mats, bc, gProne, cfg,
+                new ReferenceStateConfig(REFERENCE_TOLERANCE_MM, MAX_REFERENCE_ITERATIONS, ANDERSON_DEPTH), progress);
+        Reference r = reference(mats, bc, gProne, rs.reference().xyzMm(), rs.uToLoaded(), progress);
+        return new Reference(r.referenceXyzMm(), r.proneU(), rs.iterations() + r.iterations(), r.residualMm(),
+                r.lastSolve(), (System.nanoTime() - t0) / 1e9);
     }
 
     private static double[] subtract(double[] a, double[] b) {

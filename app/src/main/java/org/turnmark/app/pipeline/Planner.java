@@ -176,7 +176,7 @@ public final class Planner {
         MechanicsModel.Reference ref;
         SolveResult sup;
         try {
-            ref = model.reference(mats, bc, MechanicsModel.proneGravity(g), null, null, p);
+            ref = model.referenceFromProne(mats, bc, MechanicsModel.proneGravity(g), p);
             solves.put("reference state (prone reload)", summary(ref.lastSolve(), ref.iterations(), ref.residualMm(),
                     ref.seconds()));
             p = timer.begin("supine reload");
