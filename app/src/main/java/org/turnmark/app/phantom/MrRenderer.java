@@ -115,28 +115,18 @@ public final class MrRenderer {
                               byte[] labelsOut, float[] signalOut) {
         Grid3 fg = anatomy.fineGrid();
         double skin = PhantomAnatomy.rasterSkinMm(grid.spacingMm(0));
-        int nx = grid.nx();
-        int ny = grid.ny();
         Parallel.forEachBlock(grid.nz(), (long) grid.size() * 16, k -> {
-            double[] p = new double[3];
             double[] ref = new double[3];
-            for (int j = 0; j < ny; j++) {
-                for (int i = 0; i < nx; i++) {
-                    int v = i + nx * (j + ny * k);
-                    p[0] = i;
-                    p[1] = j;
-                    p[2] = k;
-                    grid.voxelToWorld().applyPoint(p, p);
-                    if (map.preimage(p[0], p[1], p[2], ref)) {
-                        int cls = anatomy.tissueClass(ref[0], ref[1], ref[2], skin);
-                        labelsOut[v] = PhantomAnatomy.labelOf(cls);
-                        signalOut[v] = cls == PhantomAnatomy.AIR ? 0f : (float) trilinear(fineImage, fg, ref);
-                    } else {
-                        labelsOut[v] = 0;
-                        signalOut[v] = 0f;
-                    }
+            VoxelSampling.forEachInSlice(grid, k, (v, p) -> {
+                if (map.preimage(p[0], p[1], p[2], ref)) {
+                    int cls = anatomy.tissueClass(ref[0], ref[1], ref[2], skin);
+                    labelsOut[v] = PhantomAnatomy.labelOf(cls);
+                    signalOut[v] = cls == PhantomAnatomy.AIR ? 0f : (float) trilinear(fineImage, fg, ref);
+                } else {
+                    labelsOut[v] = 0;
+                    signalOut[v] = 0f;
                 }
-            }
+            });
         });
     }
 
@@ -243,28 +233,7 @@ public final class MrRenderer {
         double fx = (p[0] - o[0]) / s;
         double fy = (p[1] - o[1]) / s;
         double fz = (p[2] - o[2]) / s;
-        int nx = g.nx();
-        int ny = g.ny();
-        int nz = g.nz();
-        if (!(fx >= 0 && fy >= 0 && fz >= 0 && fx <= nx - 1 && fy <= ny - 1 && fz <= nz - 1)) {
-            return 0;
-        }
-        int i = Math.min((int) fx, nx - 2);
-        int j = Math.min((int) fy, ny - 2);
-        int k = Math.min((int) fz, nz - 2);
-        double tx = fx - i;
-        double ty = fy - j;
-        double tz = fz - k;
-        int q = i + nx * (j + ny * k);
-        int sy = nx;
-        int sz = nx * ny;
-        double c00 = img[q] + tx * (img[q + 1] - img[q]);
-        double c10 = img[q + sy] + tx * (img[q + sy + 1] - img[q + sy]);
-        double c01 = img[q + sz] + tx * (img[q + sz + 1] - img[q + sz]);
-        double c11 = img[q + sy + sz] + tx * (img[q + sy + sz + 1] - img[q + sy + sz]);
-        double c0 = c00 + ty * (c10 - c00);
-        double c1 = c01 + ty * (c11 - c01);
-        return c0 + tz * (c1 - c0);
+        return VoxelSampling.trilinear(img, g.nx(), g.ny(), g.nz(), fx, fy, fz);
     }
 
     /** SplitMix64-style mixing of a seed and a stream number into a new seed. */

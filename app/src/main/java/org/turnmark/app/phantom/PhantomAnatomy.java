@@ -478,28 +478,7 @@ public final class PhantomAnatomy {
         double fx = (x - fineOx) / fineSpacing;
         double fy = (y - fineOy) / fineSpacing;
         double fz = (z - fineOz) / fineSpacing;
-        int nx = fineGrid.nx();
-        int ny = fineGrid.ny();
-        int nz = fineGrid.nz();
-        if (!(fx >= 0 && fy >= 0 && fz >= 0 && fx <= nx - 1 && fy <= ny - 1 && fz <= nz - 1)) {
-            return 0;
-        }
-        int i = Math.min((int) fx, nx - 2);
-        int j = Math.min((int) fy, ny - 2);
-        int k = Math.min((int) fz, nz - 2);
-        double tx = fx - i;
-        double ty = fy - j;
-        double tz = fz - k;
-        int p = i + nx * (j + ny * k);
-        int sy = nx;
-        int sz = nx * ny;
-        double c00 = gland[p] + tx * (gland[p + 1] - gland[p]);
-        double c10 = gland[p + sy] + tx * (gland[p + sy + 1] - gland[p + sy]);
-        double c01 = gland[p + sz] + tx * (gland[p + sz + 1] - gland[p + sz]);
-        double c11 = gland[p + sy + sz] + tx * (gland[p + sy + sz + 1] - gland[p + sy + sz]);
-        double c0 = c00 + ty * (c10 - c00);
-        double c1 = c01 + ty * (c11 - c01);
-        return c0 + tz * (c1 - c0);
+        return VoxelSampling.trilinear(gland, fineGrid.nx(), fineGrid.ny(), fineGrid.nz(), fx, fy, fz);
     }
 
     /** True if the point lies inside lesion {@code n}. */

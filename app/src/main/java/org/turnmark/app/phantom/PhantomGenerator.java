@@ -104,32 +104,22 @@ public final class PhantomGenerator {
         float[] ux = new float[n];
         float[] uy = new float[n];
         float[] uz = new float[n];
-        int nx = grid.nx();
-        int ny = grid.ny();
         double skin = PhantomAnatomy.rasterSkinMm(grid.spacingMm(0));
         double q = DISPLACEMENT_QUANTUM_MM;
         Parallel.forEachBlock(grid.nz(), (long) n * 16, k -> {
-            double[] p = new double[3];
             double[] ref = new double[3];
             double[] s = new double[3];
-            for (int j = 0; j < ny; j++) {
-                for (int i = 0; i < nx; i++) {
-                    int v = i + nx * (j + ny * k);
-                    p[0] = i;
-                    p[1] = j;
-                    p[2] = k;
-                    grid.voxelToWorld().applyPoint(p, p);
-                    if (truth.prone().invertTissue(p[0], p[1], p[2], ref)
-                            && TruthPosture.isTissue(anatomy.tissueClass(ref[0], ref[1], ref[2], skin))) {
-                        truth.supine().forwardTissue(ref, s);
-                    } else {
-                        truth.supine().placement().applyPoint(p, s);
-                    }
-                    ux[v] = (float) (Math.rint((s[0] - p[0]) / q) * q);
-                    uy[v] = (float) (Math.rint((s[1] - p[1]) / q) * q);
-                    uz[v] = (float) (Math.rint((s[2] - p[2]) / q) * q);
+            VoxelSampling.forEachInSlice(grid, k, (v, p) -> {
+                if (truth.prone().invertTissue(p[0], p[1], p[2], ref)
+                        && TruthPosture.isTissue(anatomy.tissueClass(ref[0], ref[1], ref[2], skin))) {
+                    truth.supine().forwardTissue(ref, s);
+                } else {
+                    truth.supine().placement().applyPoint(p, s);
                 }
-            }
+                ux[v] = (float) (Math.rint((s[0] - p[0]) / q) * q);
+                uy[v] = (float) (Math.rint((s[1] - p[1]) / q) * q);
+                uz[v] = (float) (Math.rint((s[2] - p[2]) / q) * q);
+            });
         });
         return new float[][] {ux, uy, uz};
     }

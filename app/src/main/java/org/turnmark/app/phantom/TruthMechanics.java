@@ -157,27 +157,17 @@ public final class TruthMechanics {
         float[] uz = new float[n];
         boolean[] known = new boolean[n];
         ConfigurationMap fwd = ConfigurationMap.forward(mesh, u);
-        int nx = g.nx();
-        int ny = g.ny();
         Parallel.forEachBlock(g.nz(), (long) n * 16, k -> {
             PointMap.Evaluator ev = fwd.evaluator();
-            double[] p = new double[3];
             double[] q = new double[3];
-            for (int j = 0; j < ny; j++) {
-                for (int i = 0; i < nx; i++) {
-                    int v = i + nx * (j + ny * k);
-                    p[0] = i;
-                    p[1] = j;
-                    p[2] = k;
-                    g.voxelToWorld().applyPoint(p, p);
-                    if (ev.map(p[0], p[1], p[2], q)) {
-                        ux[v] = (float) (q[0] - p[0]);
-                        uy[v] = (float) (q[1] - p[1]);
-                        uz[v] = (float) (q[2] - p[2]);
-                        known[v] = true;
-                    }
+            VoxelSampling.forEachInSlice(g, k, (v, p) -> {
+                if (ev.map(p[0], p[1], p[2], q)) {
+                    ux[v] = (float) (q[0] - p[0]);
+                    uy[v] = (float) (q[1] - p[1]);
+                    uz[v] = (float) (q[2] - p[2]);
+                    known[v] = true;
                 }
-            }
+            });
         });
         TruthPosture.extend(g, ux, uy, uz, known);
         return new TruthPosture(anatomy, g, ux, uy, uz, placement);
