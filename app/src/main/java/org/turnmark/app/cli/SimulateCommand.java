@@ -31,6 +31,7 @@ import org.turnmark.mechanics.mesh.MeshSurface;
 import org.turnmark.mechanics.mesh.MesherConfig;
 import org.turnmark.mechanics.mesh.PointMap;
 import org.turnmark.mechanics.mesh.SkinSmoother;
+import org.turnmark.mechanics.solve.ChestWallConstraints;
 import org.turnmark.mechanics.solve.NodeConstraints;
 import org.turnmark.mechanics.solve.SolverConfig;
 import org.turnmark.mechanics.solve.SolverDivergedException;
@@ -157,7 +158,7 @@ final class SimulateCommand implements Callable<Integer> {
             smoothing = SkinSmoother.smooth(mesh, surface, pinned, SkinSmoother.Config.defaults(smoothSkin));
             mesh = smoothing.mesh();
         }
-        NodeConstraints bc = constraints(mesh, surface, wall, sliding);
+        NodeConstraints bc = ChestWallConstraints.of(mesh, surface, wall, sliding);
         progress.update("meshing", 1);
 
         SolverConfig cfg = SolverConfig.defaults();
@@ -325,29 +326,6 @@ final class SimulateCommand implements Callable<Integer> {
                     + "or pass --overwrite");
         }
         return true;
-    }
-
-    /**
-     * Chest-wall nodes fixed, or sliding on the wall's normal with the rim of the contact (and nodes
-     * without a resolvable normal) fixed.
-     */
-    static NodeConstraints constraints(HexMesh mesh, MeshSurface surface, ChestWallBoundary.ChestWall wall,
-                                       boolean sliding) {
-        NodeConstraints bc = new NodeConstraints(mesh.nodeCount());
-        boolean[] rim = wall.rim(surface, mesh.nodeCount());
-        int[] nodes = wall.nodes();
-        double[] nrm = wall.normals();
-        for (int i = 0; i < nodes.length; i++) {
-            double nx = nrm[3 * i];
-            double ny = nrm[3 * i + 1];
-            double nz = nrm[3 * i + 2];
-            if (!sliding || rim[nodes[i]] || (nx == 0 && ny == 0 && nz == 0)) {
-                bc.fix(nodes[i]);
-            } else {
-                bc.slide(nodes[i], nx, ny, nz);
-            }
-        }
-        return bc;
     }
 
     /**

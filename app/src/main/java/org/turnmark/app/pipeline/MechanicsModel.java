@@ -13,6 +13,7 @@ import org.turnmark.mechanics.mesh.LabelMesh;
 import org.turnmark.mechanics.mesh.LabelMesher;
 import org.turnmark.mechanics.mesh.MeshSurface;
 import org.turnmark.mechanics.mesh.MesherConfig;
+import org.turnmark.mechanics.solve.ChestWallConstraints;
 import org.turnmark.mechanics.solve.HyperelasticSolver;
 import org.turnmark.mechanics.solve.NodeConstraints;
 import org.turnmark.mechanics.solve.ReferenceStateConfig;
@@ -97,22 +98,7 @@ public final class MechanicsModel {
         MeshSurface surface = MeshSurface.of(lm.mesh());
         ChestWallBoundary.ChestWall wall = ChestWallBoundary.find(lm.mesh(), surface, grid, labels, elementMm);
         // Rim: chest-wall nodes that also lie on a skin face (the edge of the breast base).
-        boolean[] isWall = new boolean[lm.mesh().nodeCount()];
-        for (int n : wall.nodes()) {
-            isWall[n] = true;
-        }
-        boolean[] rim = new boolean[isWall.length];
-        int[] f = surface.faces();
-        for (int q = 0; q < surface.faceCount(); q++) {
-            boolean allWall = isWall[f[4 * q]] && isWall[f[4 * q + 1]] && isWall[f[4 * q + 2]] && isWall[f[4 * q + 3]];
-            if (!allWall) {
-                for (int a = 0; a < 4; a++) {
-                    if (isWall[f[4 * q + a]]) {
-                        rim[f[4 * q + a]] = true;
-                    }
-                }
-            }
-        }
+        boolean[] rim = wall.rim(surface, lm.mesh().nodeCount());
         return new MechanicsModel(lm, wall, elementMm, rim);
     }
 
@@ -140,20 +126,7 @@ public final class MechanicsModel {
      * and spin a flat or rotationally symmetric chest wall would otherwise leave free.
      */
     public NodeConstraints constraints(boolean sliding) {
-        NodeConstraints bc = new NodeConstraints(proneMesh.nodeCount());
-        int[] wn = wall.nodes();
-        double[] nrm = wall.normals();
-        for (int i = 0; i < wn.length; i++) {
-            double nx = nrm[3 * i];
-            double ny = nrm[3 * i + 1];
-            double nz = nrm[3 * i + 2];
-            if (!sliding || rim[wn[i]] || (nx == 0 && ny == 0 && nz == 0)) {
-                bc.fix(wn[i]);
-            } else {
-                bc.slide(wn[i], nx, ny, nz);
-            }
-        }
-        return bc;
+        return ChestWallConstraints.of(proneMesh.nodeCount(), wall, rim, sliding);
     }
 
     /** The material table of a prior sample, with the densities of the case. */
