@@ -59,6 +59,8 @@ final class AggregationMultigrid implements Preconditioner {
         int[] tPtr;
         int[] tRow;
         int[] tIdx;
+        /** Prolongator values in transpose order (entry q of the transpose walk at q·bf·bc). */
+        double[] tVal;
         double[] rhs;
         double[] x;
         double[] r;
@@ -428,6 +430,10 @@ final class AggregationMultigrid implements Preconditioner {
                 l.tIdx[q] = k;
             }
         }
+        l.tVal = new double[nnz * fb];
+        for (int q = 0; q < nnz; q++) {
+            System.arraycopy(l.pVal, l.tIdx[q] * fb, l.tVal, q * fb, fb);
+        }
     }
 
     /** A_c = Pᵀ (A P). */
@@ -592,23 +598,57 @@ final class AggregationMultigrid implements Preconditioner {
         }
     }
 
+    /**
+     * rc = Pᵀ r, walking the transpose so each coarse row is accumulated in registers; the
+     * summation order (fine rows ascending, then fine components) is fixed.
+     */
     private static void restrict(Level l, double[] r, double[] rc) {
         final int bf = l.a.b;
         final int bc = l.bc;
         final int fb = bf * bc;
-        Parallel.forEachBlock(Parallel.blockCount(l.nc, ROWS), (long) l.pCol.length * fb, blk -> {
-            int to = Math.min(l.nc, (blk + 1) * ROWS);
+        final int[] tPtr = l.tPtr;
+        final int[] tRow = l.tRow;
+        final double[] tVal = l.tVal;
+        final int nc = l.nc;
+        Parallel.forEachBlock(Parallel.blockCount(nc, ROWS), (long) tRow.length * fb, blk -> {
+            int to = Math.min(nc, (blk + 1) * ROWS);
+            if (bc == 6) {
+                for (int g = blk * ROWS; g < to; g++) {
+                    double c0 = 0, c1 = 0, c2 = 0, c3 = 0, c4 = 0, c5 = 0;
+                    for (int t = tPtr[g], end = tPtr[g + 1]; t < end; t++) {
+                        int ri0 = bf * tRow[t];
+                        int pv = t * fb;
+                        for (int s = 0; s < bf; s++, pv += 6) {
+                            double ri = r[ri0 + s];
+                            c0 += tVal[pv] * ri;
+                            c1 += tVal[pv + 1] * ri;
+                            c2 += tVal[pv + 2] * ri;
+                            c3 += tVal[pv + 3] * ri;
+                            c4 += tVal[pv + 4] * ri;
+                            c5 += tVal[pv + 5] * ri;
+                        }
+                    }
+                    int o = 6 * g;
+                    rc[o] = c0;
+                    rc[o + 1] = c1;
+                    rc[o + 2] = c2;
+                    rc[o + 3] = c3;
+                    rc[o + 4] = c4;
+                    rc[o + 5] = c5;
+                }
+                return;
+            }
             for (int g = blk * ROWS; g < to; g++) {
                 for (int c = 0; c < bc; c++) {
                     rc[bc * g + c] = 0;
                 }
-                for (int t = l.tPtr[g]; t < l.tPtr[g + 1]; t++) {
-                    int i = l.tRow[t];
-                    int pv = l.tIdx[t] * fb;
+                for (int t = tPtr[g]; t < tPtr[g + 1]; t++) {
+                    int i = tRow[t];
+                    int pv = t * fb;
                     for (int s = 0; s < bf; s++) {
                         double ri = r[bf * i + s];
                         for (int c = 0; c < bc; c++) {
-                            rc[bc * g + c] += l.pVal[pv + bc * s + c] * ri;
+                            rc[bc * g + c] += tVal[pv + bc * s + c] * ri;
                         }
                     }
                 }
@@ -616,21 +656,46 @@ final class AggregationMultigrid implements Preconditioner {
         });
     }
 
+    /** x += P xc; each fine entry accumulates its coarse contributions in stored order. */
     private static void prolongAdd(Level l, double[] xc, double[] x) {
         final int bf = l.a.b;
         final int bc = l.bc;
         final int fb = bf * bc;
         final int n = l.a.rows;
-        Parallel.forEachBlock(Parallel.blockCount(n, ROWS), (long) l.pCol.length * fb, blk -> {
+        final int[] pPtr = l.pPtr;
+        final int[] pCol = l.pCol;
+        final double[] pVal = l.pVal;
+        Parallel.forEachBlock(Parallel.blockCount(n, ROWS), (long) pCol.length * fb, blk -> {
             int to = Math.min(n, (blk + 1) * ROWS);
+            if (bc == 6 && bf == 3) {
+                for (int i = blk * ROWS; i < to; i++) {
+                    double x0 = x[3 * i], x1 = x[3 * i + 1], x2 = x[3 * i + 2];
+                    for (int k = pPtr[i], end = pPtr[i + 1]; k < end; k++) {
+                        int g = 6 * pCol[k];
+                        int pv = k * 18;
+                        double y0 = xc[g], y1 = xc[g + 1], y2 = xc[g + 2];
+                        double y3 = xc[g + 3], y4 = xc[g + 4], y5 = xc[g + 5];
+                        x0 += pVal[pv] * y0 + pVal[pv + 1] * y1 + pVal[pv + 2] * y2
+                                + pVal[pv + 3] * y3 + pVal[pv + 4] * y4 + pVal[pv + 5] * y5;
+                        x1 += pVal[pv + 6] * y0 + pVal[pv + 7] * y1 + pVal[pv + 8] * y2
+                                + pVal[pv + 9] * y3 + pVal[pv + 10] * y4 + pVal[pv + 11] * y5;
+                        x2 += pVal[pv + 12] * y0 + pVal[pv + 13] * y1 + pVal[pv + 14] * y2
+                                + pVal[pv + 15] * y3 + pVal[pv + 16] * y4 + pVal[pv + 17] * y5;
+                    }
+                    x[3 * i] = x0;
+                    x[3 * i + 1] = x1;
+                    x[3 * i + 2] = x2;
+                }
+                return;
+            }
             for (int i = blk * ROWS; i < to; i++) {
-                for (int k = l.pPtr[i]; k < l.pPtr[i + 1]; k++) {
-                    int g = l.pCol[k];
+                for (int k = pPtr[i]; k < pPtr[i + 1]; k++) {
+                    int g = pCol[k];
                     int pv = k * fb;
                     for (int s = 0; s < bf; s++) {
                         double sum = 0;
                         for (int c = 0; c < bc; c++) {
-                            sum += l.pVal[pv + bc * s + c] * xc[bc * g + c];
+                            sum += pVal[pv + bc * s + c] * xc[bc * g + c];
                         }
                         x[bf * i + s] += sum;
                     }

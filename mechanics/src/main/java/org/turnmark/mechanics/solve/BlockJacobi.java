@@ -32,9 +32,21 @@ final class BlockJacobi implements Preconditioner {
     public void apply(double[] r, double[] z) {
         final int bs = b;
         final int bb = b * b;
+        final double[] inv = this.inv;
         Parallel.forEachBlock(Parallel.blockCount(rows, BlockCsr.ROW_BLOCK), (long) rows * bb, blk -> {
             int from = blk * BlockCsr.ROW_BLOCK;
             int to = Math.min(rows, from + BlockCsr.ROW_BLOCK);
+            if (bs == 3) {
+                for (int n = from; n < to; n++) {
+                    int o = 3 * n;
+                    int v = 9 * n;
+                    double r0 = r[o], r1 = r[o + 1], r2 = r[o + 2];
+                    z[o] = inv[v] * r0 + inv[v + 1] * r1 + inv[v + 2] * r2;
+                    z[o + 1] = inv[v + 3] * r0 + inv[v + 4] * r1 + inv[v + 5] * r2;
+                    z[o + 2] = inv[v + 6] * r0 + inv[v + 7] * r1 + inv[v + 8] * r2;
+                }
+                return;
+            }
             for (int n = from; n < to; n++) {
                 int o = bs * n;
                 int v = bb * n;

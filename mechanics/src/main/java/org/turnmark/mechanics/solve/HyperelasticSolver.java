@@ -64,6 +64,9 @@ public final class HyperelasticSolver {
     private int newtonIterations;
     private String lastFailure = "";
     private double lastResidual;
+    /** Effective Newton tolerances (the configured ones unless loosened by {@link #setTolerances}). */
+    private double residualTol;
+    private double energyTol;
 
     /**
      * Prepares a solver for one mesh: checks inputs and constraints, builds the sparsity pattern
@@ -96,6 +99,8 @@ public final class HyperelasticSolver {
         this.sys = new FeSystem(mesh, mats, cfg.formulation());
         this.proj = new Projector(c);
         this.ndof = 3 * mesh.nodeCount();
+        this.residualTol = cfg.residualTolerance();
+        this.energyTol = cfg.energyTolerance();
         this.precond = cfg.linearSolver() == LinearSolverKind.PCG_MULTIGRID
                 ? new AggregationMultigrid(mesh.xyzMm()) : new BlockJacobi();
     }
@@ -213,6 +218,23 @@ public final class HyperelasticSolver {
         sys.moveReference(xyzMm.clone());
     }
 
+    /**
+     * Sets the Newton convergence tolerances of the following solves (for inexact inner solves of
+     * the reference-state iteration); never tighter than configured.
+     *
+     * @param residualTolerance relative force residual
+     * @param energyTolerance   relative energy norm
+     */
+    void setTolerances(double residualTolerance, double energyTolerance) {
+        this.residualTol = Math.max(cfg.residualTolerance(), residualTolerance);
+        this.energyTol = Math.max(cfg.energyTolerance(), energyTolerance);
+    }
+
+    /** True if the solves use the configured (not loosened) tolerances. */
+    boolean configuredTolerances() {
+        return residualTol == cfg.residualTolerance() && energyTol == cfg.energyTolerance();
+    }
+
     /** The current reference mesh. */
     HexMesh referenceMesh() {
         return sys.mesh;
@@ -270,7 +292,7 @@ public final class HyperelasticSolver {
         record(st, rn / fnorm);
         double e0 = 0;
         double relE = 1;
-        if (rn <= cfg.residualTolerance() * fnorm) {
+        if (rn <= residualTol * fnorm) {
             finish(st, w, rn, fnorm, 0, lambda, fext);
             return true;
         }
@@ -350,7 +372,7 @@ public final class HyperelasticSolver {
                 lastFailure = "non-finite residual";
                 return false;
             }
-            if (rn <= cfg.residualTolerance() * fnorm && relE <= cfg.energyTolerance()) {
+            if (rn <= residualTol * fnorm && relE <= energyTol) {
                 finish(st, w, rn, fnorm, relE, lambda, fext);
                 return true;
             }
