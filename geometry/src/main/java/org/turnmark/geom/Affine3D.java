@@ -115,12 +115,28 @@ public final class Affine3D {
         return new double[] {m00, m01, m02, m03, m10, m11, m12, m13, m20, m21, m22, m23, 0, 0, 0, 1};
     }
 
-    /** Entry at row {@code r} (0..3) and column {@code c} (0..3). */
+    /** Entry at row {@code r} (0..3) and column {@code c} (0..3); no allocation. */
     public double get(int r, int c) {
+        if (r < 0 || r > 3 || c < 0 || c > 3) {
+            throw new IndexOutOfBoundsException("affine entry (" + r + "," + c + ") outside 4x4");
+        }
         if (r == 3) {
             return c == 3 ? 1 : 0;
         }
-        return toRowMajor()[4 * r + c];
+        switch (4 * r + c) {
+            case 0: return m00;
+            case 1: return m01;
+            case 2: return m02;
+            case 3: return m03;
+            case 4: return m10;
+            case 5: return m11;
+            case 6: return m12;
+            case 7: return m13;
+            case 8: return m20;
+            case 9: return m21;
+            case 10: return m22;
+            default: return m23;
+        }
     }
 
     /**
@@ -207,8 +223,10 @@ public final class Affine3D {
 
     /** Length (mm) of column {@code c} (0..2) of the linear part: the voxel spacing along that axis. */
     public double columnNorm(int c) {
-        double[] m = toRowMajor();
-        return Math.sqrt(m[c] * m[c] + m[4 + c] * m[4 + c] + m[8 + c] * m[8 + c]);
+        double a = get(0, c);
+        double b = get(1, c);
+        double d = get(2, c);
+        return Math.sqrt(a * a + b * b + d * d);
     }
 
     /** Largest absolute entry-wise difference to {@code o}. */

@@ -70,6 +70,20 @@ class Affine3DTest {
     }
 
     @Test
+    void entryAccessAndColumnNormsMatchTheRowMajorMatrix() {
+        Affine3D a = randomAffine(new Random(11));
+        double[] m = a.toRowMajor();
+        for (int r = 0; r < 4; r++) {
+            for (int c = 0; c < 4; c++) {
+                assertEquals(m[4 * r + c], a.get(r, c), 0.0);
+            }
+        }
+        for (int c = 0; c < 3; c++) {
+            assertEquals(Math.sqrt(m[c] * m[c] + m[4 + c] * m[4 + c] + m[8 + c] * m[8 + c]), a.columnNorm(c), 0.0);
+        }
+    }
+
+    @Test
     void rowMajorRoundTrip() {
         Affine3D a = randomAffine(new Random(7));
         assertEquals(a, Affine3D.fromRowMajor(a.toRowMajor()));
