@@ -28,6 +28,9 @@ package org.turnmark.mechanics.element;
  */
 public final class HexKernel {
 
+    /** ∂N_a/∂ξ at the element centre (ξ = 0), 3 per node; shape-function constants, read-only. */
+    private static final double[] CENTRE_DN_DXI = centreShapeDerivatives();
+
     private final double[] fg = new double[72];   // F per Gauss point, row-major
     private final double[] hg = new double[72];   // F⁻ᵀ per Gauss point
     private final double[] jg = new double[8];
@@ -264,6 +267,16 @@ public final class HexKernel {
         return 0.25 * kappa * (j * j - 1 - 2 * Math.log(j));
     }
 
+    private static double[] centreShapeDerivatives() {
+        double[] dxi = new double[24];
+        for (int a = 0; a < 8; a++) {
+            dxi[3 * a] = 0.125 * ReferenceGeometry.NODE_XI[a];
+            dxi[3 * a + 1] = 0.125 * ReferenceGeometry.NODE_ETA[a];
+            dxi[3 * a + 2] = 0.125 * ReferenceGeometry.NODE_ZETA[a];
+        }
+        return dxi;
+    }
+
     /**
      * Deformation gradient at the element centre (ξ = 0) from reference node coordinates and nodal
      * displacements.
@@ -274,12 +287,7 @@ public final class HexKernel {
      * @return det F
      */
     public static double centreDeformationGradient(double[] xe, double[] ue, double[] f) {
-        double[] dxi = new double[24];
-        for (int a = 0; a < 8; a++) {
-            dxi[3 * a] = 0.125 * ReferenceGeometry.NODE_XI[a];
-            dxi[3 * a + 1] = 0.125 * ReferenceGeometry.NODE_ETA[a];
-            dxi[3 * a + 2] = 0.125 * ReferenceGeometry.NODE_ZETA[a];
-        }
+        double[] dxi = CENTRE_DN_DXI;
         double[] j0 = new double[9];
         double[] jx = new double[9];
         for (int a = 0; a < 8; a++) {
