@@ -50,7 +50,11 @@ public final class TurnmarkCommand implements Runnable {
 
     /** Process entry point. */
     public static void main(String[] args) {
-        ThreadsOption.applyFromArgs(args);
+        String threadsError = ThreadsOption.applyFromArgs(args);
+        if (threadsError != null) {
+            System.err.println("turnmark: " + threadsError);
+            System.exit(EXIT_BAD_INPUT);
+        }
         System.exit(build().execute(args));
     }
 
