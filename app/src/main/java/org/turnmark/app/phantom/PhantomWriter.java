@@ -72,7 +72,13 @@ public final class PhantomWriter {
                 Path old = Files.createTempDirectory(parent, "." + target.getFileName() + ".old-");
                 Files.delete(old);
                 Files.move(target, old, StandardCopyOption.ATOMIC_MOVE);
-                Files.move(tmp, target, StandardCopyOption.ATOMIC_MOVE);
+                try {
+                    Files.move(tmp, target, StandardCopyOption.ATOMIC_MOVE);
+                } catch (IOException | RuntimeException e) {
+                    // Put the previous case back so a failed overwrite leaves the folder as it was.
+                    Files.move(old, target, StandardCopyOption.ATOMIC_MOVE);
+                    throw e;
+                }
                 deleteTree(old);
             } else {
                 Files.move(tmp, target, StandardCopyOption.ATOMIC_MOVE);
