@@ -141,6 +141,10 @@ final class RegisterCommand implements Callable<Integer> {
 
     @Override
     public Integer call() throws IOException {
+        // Refuse an existing output before the (long) registration rather than after it.
+        if (Files.exists(out) && !overwrite) {
+            throw new OutputFolder.ExistsException(out.toAbsolutePath().normalize());
+        }
         RegistrationConfig cfg = config();
         NiftiReader reader = new NiftiReader();
         Volume f = reader.readVolume(fixed).volume();
