@@ -20,6 +20,7 @@ import org.turnmark.mechanics.solve.ReferenceStateConfig;
 import org.turnmark.mechanics.solve.ReferenceStateResult;
 import org.turnmark.mechanics.solve.ReferenceStateSolver;
 import org.turnmark.mechanics.solve.SolveResult;
+import org.turnmark.mechanics.solve.SolverDivergedException;
 import org.turnmark.mechanics.solve.SolverConfig;
 
 /**
@@ -28,8 +29,8 @@ import org.turnmark.mechanics.solve.SolverConfig;
  *
  * <p>Reference state: the prone mesh x_p is the loaded shape; the unloaded nodes X solve
  * φ_prone(X) = x_p, found by the backward-displacement fixed point X ← X − (φ(X) − x_p) (Bols et al.,
- * ESAIM M2AN 47, 2013; REFERENCE §6) with each forward solve warm-started from the previous one, to
- * {@link #REFERENCE_TOLERANCE_MM}. Supine: the reference loaded by supine gravity (−y, optionally
+ * ESAIM M2AN 47, 2013; REFERENCE §6) with Anderson acceleration and each forward solve warm-started
+ * from the previous one, to {@link #REFERENCE_TOLERANCE_MM}. Supine: the reference loaded by supine gravity (−y, optionally
  * tilted). The chest wall is the boundary in both (fixed or sliding on its local normal), so the
  * supine shape is expressed in the prone image frame with the chest wall held in place.
  *
@@ -39,11 +40,6 @@ public final class MechanicsModel {
 
     /** Stop the reference iteration when no node is further than this from its prone position (mm): a third of a 1.5 mm voxel, a tenth of a 5 mm element. */
     public static final double REFERENCE_TOLERANCE_MM = 0.5;
-    /** Bounds of the Aitken relaxation factor: keeps an extrapolated update from overshooting into inverted elements. */
-    static final double MIN_RELAXATION = 0.3;
-    static final double MAX_RELAXATION = 1.5;
-    /** Halvings of a rejected reference update before giving up. */
-    static final int MAX_BACKOFFS = 6;
     /** Fixed-point iterations before the reference state is declared not converged. */
     public static final int MAX_REFERENCE_ITERATIONS = 40;
 
@@ -157,103 +153,43 @@ public final class MechanicsModel {
     }
 
     /**
-     * Solves for the gravity-free reference state.
+     * Solves for the gravity-free reference state with the mechanics module's Anderson-accelerated
+     * backward-displacement fixed point ({@link ReferenceStateSolver}) to
+     * {@link #REFERENCE_TOLERANCE_MM}, optionally warm-started from a nearby solution (the nominal
+     * reference when sampling the priors).
      *
      * @param mats     materials
      * @param bc       constraints
      * @param gProne   prone gravity (m/s², RAS)
      * @param startX   initial guess of the reference nodes (null: the prone nodes)
-     * @param startU   warm start of the prone displacement (null: none)
+     * @param startU   warm start of the prone displacement from {@code startX} (null: none)
      * @param progress progress for this stage
      * @throws ReferenceNotConvergedException if the tolerance is not reached
      */
     public Reference reference(MaterialTable mats, NodeConstraints bc, double[] gProne, double[] startX, double[] startU,
                                Progress progress) {
         long t0 = System.nanoTime();
-        double[] xp = proneMesh.xyzMm();
-        double[] x = startX == null ? xp.clone() : startX.clone();
-        double[] u = startU == null ? null : startU.clone();
-        double res = Double.POSITIVE_INFINITY;
-        SolveResult last = null;
-        double[] r = new double[x.length];
-        double[] rPrev = null;
-        double omega = 1.0;
-        double[] xPrev = null;
-        int backoffs = 0;
-        for (int it = 1; it <= MAX_REFERENCE_ITERATIONS; it++) {
-            progress.checkCancelled();
-            HexMesh ref = proneMesh.withNodes(x);
-            try {
-                last = new HyperelasticSolver(ref, mats, bc, cfg).solve(gProne, Progress.NONE, u);
-            } catch (RuntimeException e) {
-                // An update that inverts a reference element (or a load the solver cannot carry) is
-                // rejected: go back to the last accepted X and take half the step.
-                if (e instanceof Progress.CancelledException || xPrev == null || ++backoffs > MAX_BACKOFFS) {
-                    throw e;
-                }
-                omega *= 0.5;
-                for (int i = 0; i < x.length; i++) {
-                    x[i] = xPrev[i] - omega * rPrev[i];
-                }
-                continue;
-            }
-            u = last.u();
-            // Residual r = φ(X) − x_p.
-            res = 0;
-            for (int i = 0; i < x.length; i += 3) {
-                r[i] = x[i] + u[i] - xp[i];
-                r[i + 1] = x[i + 1] + u[i + 1] - xp[i + 1];
-                r[i + 2] = x[i + 2] + u[i + 2] - xp[i + 2];
-                res = Math.max(res, Math.sqrt(r[i] * r[i] + r[i + 1] * r[i + 1] + r[i + 2] * r[i + 2]));
-            }
-            progress.update("reference state", Math.min(1, it / 10.0));
-            if (res <= REFERENCE_TOLERANCE_MM) {
-                // φ(X) of the solve above is within res of x_p; report X = x_p − u so the prone nodes are exact.
-                x = subtract(xp, u);
-                return new Reference(x, u, it, res, last, (System.nanoTime() - t0) / 1e9);
-            }
-            // Aitken's dynamic relaxation of the backward-displacement update X ← X − ω r (Irons & Tuck,
-            // IJNME 1, 1969; Küttler & Wall, Comput Mech 43, 2008, eq. 44): ω_k = −ω_{k−1} r_{k−1}·Δr / |Δr|².
-            if (rPrev != null) {
-                double num = 0;
-                double den = 0;
-                for (int i = 0; i < r.length; i++) {
-                    double d = r[i] - rPrev[i];
-                    num += rPrev[i] * d;
-                    den += d * d;
-                }
-                if (den > 0) {
-                    omega = Math.max(MIN_RELAXATION, Math.min(MAX_RELAXATION, -omega * num / den));
-                }
-            } else {
-                rPrev = new double[r.length];
-            }
-            xPrev = x.clone();
-            for (int i = 0; i < x.length; i++) {
-                x[i] -= omega * r[i];
-            }
-            System.arraycopy(r, 0, rPrev, 0, r.length);
+        ReferenceStateResult rs;
+        try {
+            rs = ReferenceStateSolver.solve(proneMesh, mats, bc, gProne, cfg,
+                    new ReferenceStateConfig(REFERENCE_TOLERANCE_MM, MAX_REFERENCE_ITERATIONS, ANDERSON_DEPTH), progress,
+                    startX, startU);
+        } catch (SolverDivergedException e) {
+            throw new ReferenceNotConvergedException("reference state: " + e.getMessage());
         }
-        throw new ReferenceNotConvergedException(String.format(java.util.Locale.ROOT,
-                "reference state did not converge in %d iterations: a node is still %.2f mm from its prone position "
-                        + "(tolerance %.2f mm)", MAX_REFERENCE_ITERATIONS, res, REFERENCE_TOLERANCE_MM));
+        // φ(X) of the last solve is within the tolerance of x_p; report X = x_p − u so the prone
+        // nodes are reproduced exactly by X + u.
+        double[] u = rs.uToLoaded();
+        return new Reference(subtract(proneMesh.xyzMm(), u), u, rs.iterations(), rs.maxMismatchMm(), rs.lastSolve(),
+                (System.nanoTime() - t0) / 1e9);
     }
 
-    /** Anderson depth for the cold-start reference state (the mechanics module's default). */
+    /** Anderson depth of the reference iteration (the mechanics module's default). */
     static final int ANDERSON_DEPTH = 5;
 
-    /**
-     * The nominal (cold-start) reference state: the mechanics module's Anderson-accelerated
-     * fixed point ({@link ReferenceStateSolver}) to {@link #REFERENCE_TOLERANCE_MM}, then one
-     * warm-started pass of {@link #reference} for the solve diagnostics reported with the plan.
-     */
+    /** The nominal (cold-start) reference state: {@link #reference} from the prone nodes. */
     public Reference referenceFromProne(MaterialTable mats, NodeConstraints bc, double[] gProne, Progress progress) {
-        long t0 = System.nanoTime();
-        ReferenceStateResult rs = ReferenceStateSolver.solve(proneMesh, mats, bc, gProne, cfg,
-                new ReferenceStateConfig(REFERENCE_TOLERANCE_MM, MAX_REFERENCE_ITERATIONS, ANDERSON_DEPTH), progress);
-        Reference r = reference(mats, bc, gProne, rs.reference().xyzMm(), rs.uToLoaded(), progress);
-        return new Reference(r.referenceXyzMm(), r.proneU(), rs.iterations() + r.iterations(), r.residualMm(),
-                r.lastSolve(), (System.nanoTime() - t0) / 1e9);
+        return reference(mats, bc, gProne, null, null, progress);
     }
 
     private static double[] subtract(double[] a, double[] b) {

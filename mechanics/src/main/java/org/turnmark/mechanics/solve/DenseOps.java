@@ -21,7 +21,7 @@ final class DenseOps {
                 s -= m[n * j + k] * m[n * j + k];
             }
             if (!(s > 0)) {
-                throw new LinearSolveException("diagonal block " + row + " is not positive definite (pivot " + s + ")");
+                throw new LinearSolveException("diagonal block " + row + " is not positive definite (pivot " + s + ")", true);
             }
             double d = Math.sqrt(s);
             m[n * j + j] = d;
@@ -68,7 +68,7 @@ final class DenseOps {
                 s -= m[n * j + k] * m[n * j + k];
             }
             if (!(s > 0)) {
-                throw new LinearSolveException("coarse matrix is not positive definite (pivot " + s + " at " + j + ")");
+                throw new LinearSolveException("coarse matrix is not positive definite (pivot " + s + " at " + j + ")", true);
             }
             double d = Math.sqrt(s);
             m[n * j + j] = d;

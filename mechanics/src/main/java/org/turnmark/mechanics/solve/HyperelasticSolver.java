@@ -49,6 +49,16 @@ public final class HyperelasticSolver {
      */
     static final double ELEMENT_ROUNDOFF = 1e-13;
 
+    /** First diagonal shift (relative to the mean diagonal) tried when the tangent is indefinite. */
+    static final double MIN_SHIFT = 1e-3;
+    /** Growth of the shift per failed attempt, and its decay per following Newton iteration. */
+    static final double SHIFT_GROWTH = 10;
+    /**
+     * Largest shift: at 10× the mean diagonal the step is a small, heavily damped gradient-like
+     * step; needing more means the state is not recoverable by regularisation.
+     */
+    static final double MAX_SHIFT = 10;
+
     /** Largest relative tolerance of a linear solve (far from the solution). */
     static final double FORCING_MAX = 1e-2;
     /** Linear tolerance = this × relative force residual (bounded below by the configured floor). */
@@ -62,6 +72,10 @@ public final class HyperelasticSolver {
     private final int ndof;
     private int linearIterations;
     private int newtonIterations;
+    /** Newton iterations of the current solve that needed a diagonal shift. */
+    private int shiftedIterations;
+    /** Relative diagonal shift to try first in the next Newton iteration (0: plain Newton). */
+    private double shift;
     private String lastFailure = "";
     private double lastResidual;
     /** Effective Newton tolerances (the configured ones unless loosened by {@link #setTolerances}). */
@@ -141,6 +155,7 @@ public final class HyperelasticSolver {
         Progress prog = progress == null ? Progress.NONE : progress;
         linearIterations = 0;
         newtonIterations = 0;
+        shiftedIterations = 0;
         double[] fext = new double[ndof];
         sys.gravityLoad(gravityMs2, fext);
         if (cfg.nodalForcesMn() != null) {
@@ -244,7 +259,7 @@ public final class HyperelasticSolver {
         long ms = (System.nanoTime() - t0) / 1_000_000;
         return new SolveResult(st.u.clone(), true, steps, cuts, newtonIterations, linearIterations, st.residual,
                 st.relResidual, st.relEnergy, st.energy, st.minDetF, ms,
-                Arrays.copyOf(st.history, st.historyLength));
+                Arrays.copyOf(st.history, st.historyLength), shiftedIterations);
     }
 
     /** Newton state of one load increment. */
@@ -276,6 +291,7 @@ public final class HyperelasticSolver {
     /** Newton iterations at load factor lambda from st.u; true on convergence (st.u updated). */
     private boolean newton(double lambda, double[] fext, Step st, Progress prog) {
         st.iterations = 0;
+        shift = 0;
         double w = sys.assemble(st.u, st.r, true, st.detF);
         if (!Double.isFinite(w)) {
             lastFailure = "element inverted at the start of the increment (min det F " + st.detF[0] + ")";
@@ -304,21 +320,10 @@ public final class HyperelasticSolver {
             for (int i = 0; i < ndof; i++) {
                 st.rhs[i] = -st.r[i];
             }
-            try {
-                if (it == 1) {
-                    precond.setup(sys.k);
-                } else {
-                    precond.refresh(sys.k);
-                }
-                // inexact Newton: forcing term proportional to the relative residual keeps the local
-                // convergence quadratic (Dembo, Eisenstat & Steihaug, SIAM J Numer Anal 19, 1982)
-                double eta = Math.max(cfg.linearTolerance(), Math.min(FORCING_MAX, FORCING_FACTOR * rn / fnorm));
-                linearIterations += pcg.solve(sys.k, precond, st.rhs, st.du, eta, cfg.maxLinearIterations());
-                // the multigrid coarse correction is not confined to the admissible subspace, so the
-                // iterate carries round-off-sized constrained components: remove them exactly
-                proj.project(st.du);
-            } catch (LinearSolveException ex) {
-                lastFailure = "linear solve failed: " + ex.getMessage();
+            // inexact Newton: forcing term proportional to the relative residual keeps the local
+            // convergence quadratic (Dembo, Eisenstat & Steihaug, SIAM J Numer Anal 19, 1982)
+            double eta = Math.max(cfg.linearTolerance(), Math.min(FORCING_MAX, FORCING_FACTOR * rn / fnorm));
+            if (!linearSolve(st, it == 1, eta)) {
                 return false;
             }
             double slope = VecOps.dot(st.du, st.r);
@@ -380,6 +385,82 @@ public final class HyperelasticSolver {
         lastFailure = "no convergence in " + cfg.maxNewtonIterations() + " Newton iterations (relative residual "
                 + String.format("%.3g", rn / fnorm) + ")";
         return false;
+    }
+
+    /**
+     * Solves K du = rhs for the Newton correction. Away from equilibrium (a warm start, a large
+     * increment) the consistent tangent of a compressed neo-Hookean body can be indefinite; then the
+     * step uses K + τ·d̄·I instead (Levenberg–Marquardt regularisation; Nocedal &amp; Wright,
+     * Numerical Optimization, §4 and §10.3), with d̄ the mean diagonal entry of K and τ raised by
+     * {@link #SHIFT_GROWTH} until the shifted matrix is positive definite. Any positive definite
+     * matrix gives a descent direction for the energy line search; the shift is reduced by the
+     * same factor on each following iteration, so the final iterations are plain Newton steps and
+     * keep their quadratic convergence.
+     *
+     * @return false (with {@link #lastFailure} set) if no shift up to {@link #MAX_SHIFT} helps
+     */
+    private boolean linearSolve(Step st, boolean firstIteration, double eta) {
+        boolean fullSetup = firstIteration;
+        double applied = 0;
+        double tau = shift;
+        while (true) {
+            try {
+                if (tau > 0) {
+                    addDiagonal(sys.k, (tau - applied) * meanDiagonal(sys.k));
+                    applied = tau;
+                }
+                if (fullSetup) {
+                    precond.setup(sys.k);
+                } else {
+                    precond.refresh(sys.k);
+                }
+                linearIterations += pcg.solve(sys.k, precond, st.rhs, st.du, eta, cfg.maxLinearIterations());
+                // the multigrid coarse correction is not confined to the admissible subspace, so the
+                // iterate carries round-off-sized constrained components: remove them exactly
+                proj.project(st.du);
+                shift = tau / SHIFT_GROWTH < MIN_SHIFT ? 0 : tau / SHIFT_GROWTH;
+                if (tau > 0) {
+                    shiftedIterations++;
+                }
+                return true;
+            } catch (LinearSolveException ex) {
+                if (!ex.indefinite() || tau >= MAX_SHIFT) {
+                    lastFailure = "linear solve failed: " + ex.getMessage()
+                            + (tau > 0 ? String.format(" (with a diagonal shift of %.3g × the mean diagonal)", tau) : "");
+                    return false;
+                }
+                tau = tau == 0 ? MIN_SHIFT : tau * SHIFT_GROWTH;
+                // a shifted matrix has new coarse operators: rebuild the hierarchy
+                fullSetup = true;
+            }
+        }
+    }
+
+    /** Mean of the diagonal entries of the (projected) tangent; 1 if none is positive. */
+    private static double meanDiagonal(BlockCsr a) {
+        double s = 0;
+        int n = 0;
+        for (int r = 0; r < a.rows; r++) {
+            int d = 9 * a.diag[r];
+            for (int i = 0; i < 3; i++) {
+                double v = a.val[d + 4 * i];
+                if (v > 0) {
+                    s += v;
+                    n++;
+                }
+            }
+        }
+        return n > 0 ? s / n : 1;
+    }
+
+    /** A ← A + c I. */
+    private static void addDiagonal(BlockCsr a, double c) {
+        for (int r = 0; r < a.rows; r++) {
+            int d = 9 * a.diag[r];
+            a.val[d] += c;
+            a.val[d + 4] += c;
+            a.val[d + 8] += c;
+        }
     }
 
     private static void record(Step st, double rel) {

@@ -43,7 +43,7 @@ final class Pcg {
             double pq = VecOps.dot(p, q);
             if (!(pq > 0)) {
                 throw new LinearSolveException("conjugate gradients met non-positive curvature " + pq
-                        + " at iteration " + it + " (tangent not positive definite)");
+                        + " at iteration " + it + " (tangent not positive definite)", true);
             }
             double alpha = rz / pq;
             axpy2(alpha, p, q, x, r);

@@ -16,8 +16,10 @@ import org.turnmark.mechanics.mesh.HexMesh;
  * @param linearIterations   conjugate-gradient iterations over all forward solves
  * @param timeMs             wall time, ms
  * @param method             "fixed-point (Anderson m)" or "reverse gravity (biased)"
+ * @param lastSolve          diagnostics of the forward solve of the returned reference (load steps,
+ *                           residuals, smallest det F)
  */
 public record ReferenceStateResult(HexMesh reference, double[] uToLoaded, int iterations, double maxMismatchMm,
                                    double[] mismatchHistoryMm, int newtonIterations, int linearIterations,
-                                   long timeMs, String method) {
+                                   long timeMs, String method, SolveResult lastSolve) {
 }

@@ -70,14 +70,33 @@ public final class ReferenceStateSolver {
     public static ReferenceStateResult solve(HexMesh loaded, MaterialTable mats, NodeConstraints bc,
                                              double[] gravityMs2, SolverConfig cfg, ReferenceStateConfig rcfg,
                                              Progress progress) {
+        return solve(loaded, mats, bc, gravityMs2, cfg, rcfg, progress, null, null);
+    }
+
+    /**
+     * Estimates the reference configuration from a starting guess, e.g. the reference state of a
+     * nearby parameter set (uncertainty sampling).
+     *
+     * @param startX reference node positions to start from (3 per node, mm), or null for the loaded
+     *               positions
+     * @param startU displacement from {@code startX} to warm-start the first forward solve (3 per
+     *               node, mm), or null for none
+     * @see #solve(HexMesh, MaterialTable, NodeConstraints, double[], SolverConfig, ReferenceStateConfig, Progress)
+     */
+    public static ReferenceStateResult solve(HexMesh loaded, MaterialTable mats, NodeConstraints bc,
+                                             double[] gravityMs2, SolverConfig cfg, ReferenceStateConfig rcfg,
+                                             Progress progress, double[] startX, double[] startU) {
         long t0 = System.nanoTime();
         Progress prog = progress == null ? Progress.NONE : progress;
         HyperelasticSolver solver = new HyperelasticSolver(loaded, mats, bc, cfg);
         final double[] xObs = loaded.xyzMm();
         final int n = xObs.length;
+        if (startX != null && startX.length != n || startU != null && startU.length != n) {
+            throw new IllegalArgumentException("start positions and displacements need " + n + " values");
+        }
         final int m = rcfg.andersonDepth();
-        double[] x = xObs.clone();          // current reference estimate X_k
-        double[] u = null;                   // last displacement (warm start)
+        double[] x = startX == null ? xObs.clone() : startX.clone();   // current reference estimate X_k
+        double[] u = startU == null ? null : startU.clone();           // last displacement (warm start)
         double[] f = new double[n];          // f_k = x_obs − φ(X_k)
         double[][] dX = new double[m][];
         double[][] dF = new double[m][];
@@ -133,7 +152,7 @@ public final class ReferenceStateSolver {
             if (mismatch <= rcfg.toleranceMm()) {
                 return new ReferenceStateResult(loaded.withNodes(x.clone()), u.clone(), k + 1, mismatch,
                         Arrays.copyOf(history, k + 1), newton, linear, (System.nanoTime() - t0) / 1_000_000,
-                        "fixed-point (Anderson " + m + ")");
+                        "fixed-point (Anderson " + m + ")", r);
             }
             // Anderson type II: X_{k+1} = X_k + f_k − (ΔX + ΔF) γ, γ = argmin ‖f_k − ΔF γ‖
             if (m > 0 && xPrev != null) {
@@ -215,7 +234,7 @@ public final class ReferenceStateSolver {
         }
         return new ReferenceStateResult(loaded.withNodes(x), fwd.u(), 0, mismatch, new double[] {mismatch},
                 back.newtonIterations() + fwd.newtonIterations(), back.linearIterations() + fwd.linearIterations(),
-                (System.nanoTime() - t0) / 1_000_000, "reverse gravity (biased)");
+                (System.nanoTime() - t0) / 1_000_000, "reverse gravity (biased)", fwd);
     }
 
     /** min ‖f − Σ γ_j dF_j‖ by normal equations with a tiny Tikhonov term (m ≤ 20 columns). */

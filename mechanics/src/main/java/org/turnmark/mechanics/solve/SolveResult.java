@@ -20,11 +20,13 @@ package org.turnmark.mechanics.solve;
  * @param lastIncrementResiduals relative force residual ‖P R‖/‖P F_ext‖ before the first and after
  *                            each Newton iteration of the last load increment (for convergence
  *                            studies)
+ * @param shiftedIterations   Newton iterations (over all increments) whose tangent was indefinite
+ *                            and needed a diagonal shift (Levenberg–Marquardt step)
  */
 public record SolveResult(double[] u, boolean converged, int loadSteps, int cutSteps, int newtonIterations,
                           int linearIterations, double residualNormMn, double relativeResidual,
                           double relativeEnergyNorm, double strainEnergyMnMm, double minDetF, long timeMs,
-                          double[] lastIncrementResiduals) {
+                          double[] lastIncrementResiduals, int shiftedIterations) {
 
     /** Largest nodal displacement magnitude, mm. */
     public double maxDisplacementMm() {
@@ -37,9 +39,9 @@ public record SolveResult(double[] u, boolean converged, int loadSteps, int cutS
 
     @Override
     public String toString() {
-        return String.format("SolveResult{steps=%d (cut %d), newton=%d, linear=%d, residual=%.3g mN (rel %.3g),"
+        return String.format("SolveResult{steps=%d (cut %d), newton=%d (shifted %d), linear=%d, residual=%.3g mN (rel %.3g),"
                         + " energyNorm=%.3g, energy=%.6g mN*mm, minDetF=%.4f, maxU=%.3f mm, time=%d ms}",
-                loadSteps, cutSteps, newtonIterations, linearIterations, residualNormMn, relativeResidual,
+                loadSteps, cutSteps, newtonIterations, shiftedIterations, linearIterations, residualNormMn, relativeResidual,
                 relativeEnergyNorm, strainEnergyMnMm, minDetF, maxDisplacementMm(), timeMs);
     }
 }

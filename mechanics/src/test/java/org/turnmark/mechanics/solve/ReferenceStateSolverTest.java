@@ -95,4 +95,29 @@ class ReferenceStateSolverTest {
             }
         }
     }
+
+    /**
+     * A warm start from the reference of a stiffer material (as when sampling stiffness priors)
+     * converges to the same reference as the cold start, within a few times the tolerance (both
+     * meet the mismatch tolerance of the same unique solution), in no more forward solves.
+     */
+    @Test
+    void warmStartFromANearbyMaterialReachesTheSameReference() {
+        ReferenceStateConfig rcfg = ReferenceStateConfig.defaults();
+        MaterialTable stiffer = MaterialTable.uniform(NeoHookeanMaterial.ofMuNu(0.15, 0.45, 1000));
+        ReferenceStateResult near = ReferenceStateSolver.solve(prone, stiffer, bc, PRONE, SolverConfig.defaults(), rcfg,
+                Progress.NONE);
+        ReferenceStateResult cold = ReferenceStateSolver.solve(prone, SOFT, bc, PRONE, SolverConfig.defaults(), rcfg,
+                Progress.NONE);
+        ReferenceStateResult warm = ReferenceStateSolver.solve(prone, SOFT, bc, PRONE, SolverConfig.defaults(), rcfg,
+                Progress.NONE, near.reference().xyzMm(), near.uToLoaded());
+        assertTrue(warm.maxMismatchMm() <= rcfg.toleranceMm());
+        assertTrue(warm.iterations() <= cold.iterations(), "warm " + warm.iterations() + " vs cold " + cold.iterations());
+        double[] a = warm.reference().xyzMm();
+        double[] b = cold.reference().xyzMm();
+        for (int i = 0; i < a.length; i++) {
+            assertEquals(b[i], a[i], 4 * rcfg.toleranceMm(), "coordinate " + i);
+        }
+        assertTrue(warm.lastSolve().minDetF() > 0);
+    }
 }
