@@ -43,7 +43,9 @@ import org.turnmark.registration.volume.VectorField;
  * <p>Forces are only taken at voxels inside the similarity mask whose six neighbours are inside the
  * moving image (the gradient there is not polluted by the zero fill).
  *
- * <p>Keeps grid-sized workspaces; not thread safe; kernels parallel through {@link Parallel}.
+ * <p>Keeps grid-sized workspaces; not thread safe; kernels parallel through {@link Parallel}. With the
+ * SSD metric the world-mm gradient of each reference image (F; M₀ in symmetric mode) is computed once
+ * per level and kept (three {@code double} arrays on the level grid, 24 bytes per voxel per reference).
  */
 final class LevelSolver {
 
@@ -96,6 +98,10 @@ final class LevelSolver {
     private final float[] dcostB;
     private final byte[] validB;
     private final byte[] maskB;
+    // SSD only: ∇F and ∇M₀ (world mm, components x, y, z) on the level grid; the references do not
+    // change within a level, so their gradients are computed on first use and kept. Null until then.
+    private double[][] fixedGradient;
+    private double[][] m0Gradient;
 
     /**
      * @param fixedMask   level fixed mask (0/1) or null
@@ -318,6 +324,10 @@ final class LevelSolver {
         final int ny = grid.ny();
         final int nz = grid.nz();
         final boolean demons = metric.kind() == MetricKind.SSD;
+        final double[][] gRef = demons ? referenceGradient(ref) : null;
+        final double[] gfx = demons ? gRef[0] : null;
+        final double[] gfy = demons ? gRef[1] : null;
+        final double[] gfz = demons ? gRef[2] : null;
         final double sigmaX2 = 4 * stepMm * stepMm;
         final float[] fx = out.x();
         final float[] fy = out.y();
@@ -325,7 +335,6 @@ final class LevelSolver {
         final int slice = nx * ny;
         Parallel.forEachBlock(nz, (long) grid.size() * 4, k -> {
             double[] gw = new double[3];
-            double[] gf = new double[3];
             for (int j = 0; j < ny; j++) {
                 int n = nx * (j + ny * k);
                 for (int i = 0; i < nx; i++, n++) {
@@ -338,10 +347,9 @@ final class LevelSolver {
                             && (k == 0 || ok[n - slice] != 0) && (k == nz - 1 || ok[n + slice] != 0)) {
                         derivatives.gradient(w, i, j, k, gw);
                         if (demons) {
-                            derivatives.gradient(ref, i, j, k, gf);
-                            double g0 = 0.5 * (gw[0] + gf[0]);
-                            double g1 = 0.5 * (gw[1] + gf[1]);
-                            double g2 = 0.5 * (gw[2] + gf[2]);
+                            double g0 = 0.5 * (gw[0] + gfx[n]);
+                            double g1 = 0.5 * (gw[1] + gfy[n]);
+                            double g2 = 0.5 * (gw[2] + gfz[n]);
                             double diff = (double) ref[n] - w[n];
                             double den = g0 * g0 + g1 * g1 + g2 * g2 + diff * diff / sigmaX2;
                             if (den > 1e-12) {
@@ -370,6 +378,49 @@ final class LevelSolver {
             max = stepMm;
         }
         return max;
+    }
+
+    /**
+     * The kept world-mm gradient of a reference image ({@code fixed} or {@code m0}), computed on the
+     * first call; the same stencil as {@link FieldDerivatives#gradient}, so the forces are unchanged.
+     */
+    private double[][] referenceGradient(float[] ref) {
+        if (ref == fixed) {
+            if (fixedGradient == null) {
+                fixedGradient = gradientOf(ref);
+            }
+            return fixedGradient;
+        }
+        if (ref == m0) {
+            if (m0Gradient == null) {
+                m0Gradient = gradientOf(ref);
+            }
+            return m0Gradient;
+        }
+        throw new IllegalStateException("the reference image must be the level's fixed image or M0");
+    }
+
+    /** World-mm gradient of {@code f} at every voxel of the level grid, as three component arrays. */
+    private double[][] gradientOf(float[] f) {
+        final int nx = grid.nx();
+        final int ny = grid.ny();
+        final int n = grid.size();
+        final double[] gx = new double[n];
+        final double[] gy = new double[n];
+        final double[] gz = new double[n];
+        Parallel.forEachBlock(grid.nz(), n, k -> {
+            double[] g = new double[3];
+            for (int j = 0; j < ny; j++) {
+                int q = nx * (j + ny * k);
+                for (int i = 0; i < nx; i++, q++) {
+                    derivatives.gradient(f, i, j, k, g);
+                    gx[q] = g[0];
+                    gy[q] = g[1];
+                    gz[q] = g[2];
+                }
+            }
+        });
+        return new double[][] {gx, gy, gz};
     }
 
     /** f ← (1 − w)·f + w·G_σ ∗ f, using {@code delta} as scratch. */
