@@ -21,6 +21,13 @@ class HexKernelTest {
     static final double FD_RELATIVE_TOLERANCE = 1e-7;
     static final double FD_STEP_MM = 1e-6;
 
+    /**
+     * Round-off allowance for F of an affine map through the centre formula: a handful of products
+     * and sums of O(1) numbers plus one 3×3 inverse of a well-conditioned (≈ 2 mm cube) Jacobian,
+     * so errors of tens of ε ≈ 1e−15; 1e−12 leaves margin.
+     */
+    static final double AFFINE_F_TOLERANCE = 1e-12;
+
     /** A distorted single element (reference nodes perturbed from a 2 mm cube by up to 0.3 mm). */
     static double[] distortedElement(Random rnd) {
         double[] x = new double[24];
@@ -219,5 +226,74 @@ class HexKernelTest {
         InvertedElementException ex = org.junit.jupiter.api.Assertions.assertThrows(InvertedElementException.class,
                 () -> ReferenceGeometry.of(x, oneHex()));
         assertEquals(0, ex.element());
+    }
+
+    /** The array-based centre deformation gradient (the plain form of the unrolled kernel). */
+    private static double naiveCentreDeformationGradient(double[] xe, double[] ue, double[] f) {
+        double[] dxi = new double[24];
+        for (int a = 0; a < 8; a++) {
+            dxi[3 * a] = 0.125 * ReferenceGeometry.NODE_XI[a];
+            dxi[3 * a + 1] = 0.125 * ReferenceGeometry.NODE_ETA[a];
+            dxi[3 * a + 2] = 0.125 * ReferenceGeometry.NODE_ZETA[a];
+        }
+        double[] j0 = new double[9];
+        double[] jx = new double[9];
+        for (int a = 0; a < 8; a++) {
+            for (int i = 0; i < 3; i++) {
+                for (int al = 0; al < 3; al++) {
+                    j0[3 * i + al] += xe[3 * a + i] * dxi[3 * a + al];
+                    jx[3 * i + al] += (xe[3 * a + i] + ue[3 * a + i]) * dxi[3 * a + al];
+                }
+            }
+        }
+        double[] inv = new double[9];
+        Mat3.inverse(j0, inv);
+        Mat3.multiply(jx, inv, f);
+        return Mat3.det(f);
+    }
+
+    @Test
+    void centreDeformationGradientEqualsArrayFormBitForBit() {
+        Random rnd = new Random(23);
+        double[] f = new double[9];
+        double[] expected = new double[9];
+        for (int t = 0; t < 200; t++) {
+            double[] x = distortedElement(rnd);
+            double[] u = new double[24];
+            for (int i = 0; i < 24; i++) {
+                u[i] = 0.6 * (rnd.nextDouble() - 0.5);
+            }
+            double det = HexKernel.centreDeformationGradient(x, u, f);
+            double detExpected = naiveCentreDeformationGradient(x, u, expected);
+            assertEquals(Double.doubleToRawLongBits(detExpected), Double.doubleToRawLongBits(det), "det F, trial " + t);
+            for (int q = 0; q < 9; q++) {
+                assertEquals(Double.doubleToRawLongBits(expected[q]), Double.doubleToRawLongBits(f[q]),
+                        "F[" + q + "], trial " + t);
+            }
+        }
+        assertTrue(Math.abs(f[1]) > 1e-3, "sanity: the deformation has shear, F[1] = " + f[1]);
+    }
+
+    @Test
+    void centreDeformationGradientOfAffineMapIsItsLinearPart() {
+        // u = (A − I) X is reproduced exactly by trilinear shape functions, so F = A at any point of
+        // any (distorted) element (closed form).
+        double[] a = {1.1, 0.2, -0.05, 0.03, 0.9, 0.1, -0.1, 0.04, 1.05};
+        double[] x = distortedElement(new Random(5));
+        double[] u = new double[24];
+        for (int n = 0; n < 8; n++) {
+            for (int r = 0; r < 3; r++) {
+                double y = a[3 * r] * x[3 * n] + a[3 * r + 1] * x[3 * n + 1] + a[3 * r + 2] * x[3 * n + 2];
+                u[3 * n + r] = y - x[3 * n + r];
+            }
+        }
+        double[] f = new double[9];
+        double det = HexKernel.centreDeformationGradient(x, u, f);
+        for (int q = 0; q < 9; q++) {
+            assertEquals(a[q], f[q], AFFINE_F_TOLERANCE, "F[" + q + "]");
+        }
+        double detA = a[0] * (a[4] * a[8] - a[5] * a[7]) - a[1] * (a[3] * a[8] - a[5] * a[6])
+                + a[2] * (a[3] * a[7] - a[4] * a[6]);
+        assertEquals(detA, det, AFFINE_F_TOLERANCE);
     }
 }
