@@ -15,10 +15,15 @@ import java.util.Locale;
  * and at 3 o'clock in the left (dx < 0). Positions are rounded to the nearest half hour.
  *
  * <p>Quadrant: upper/lower by the sign of dz; outer (lateral) when the offset points away from the
- * midline for that breast. Within {@link #CENTRAL_RADIUS_MM} of the nipple (coronal projection) the
- * lesion is central/retroareolar; in the upper-outer quadrant, beyond {@link #AXILLARY_TAIL_MIN_MM}
- * from the nipple and within 45° of the superolateral diagonal, it is in the axillary tail (a stated
- * heuristic: the tail extends from the upper-outer quadrant toward the axilla).
+ * midline for that breast, with {@code lateral} the offset component away from the midline
+ * ({@code dx} in the right breast, {@code −dx} in the left). Within {@link #CENTRAL_RADIUS_MM} of the
+ * nipple (coronal projection) the lesion is central/retroareolar. It is in the axillary tail when it
+ * is upper-outer ({@code dz ≥ 0}, {@code lateral ≥ 0}), more than {@link #AXILLARY_TAIL_MIN_MM} from
+ * the nipple in coronal projection, and {@code dz > lateral / 2}: more than atan(1/2) ≈ 26.6° above the
+ * lateral direction, up to and including straight superior. That is the upper-outer sector from about
+ * 9:53 to 12:00 in the right breast and from 12:00 to about 2:07 in the left (exact angle, before the
+ * clock's half-hour rounding); it is not centred on the superolateral diagonal. A stated heuristic:
+ * the tail extends from the upper-outer quadrant toward the axilla.
  *
  * <p>Stateless; thread safe. All inputs in world RAS mm.
  */
@@ -26,7 +31,7 @@ public final class Descriptors {
 
     /** Coronal distance from the nipple below which a lesion is central/retroareolar: about an areola radius (common practice). */
     public static final double CENTRAL_RADIUS_MM = 20.0;
-    /** Coronal distance from the nipple beyond which an upper-outer lesion near the superolateral diagonal is in the axillary tail (heuristic). */
+    /** Coronal distance from the nipple beyond which an upper-outer lesion with dz &gt; lateral/2 is in the axillary tail (heuristic). */
     public static final double AXILLARY_TAIL_MIN_MM = 70.0;
 
     /**
@@ -102,8 +107,8 @@ public final class Descriptors {
         String quadrant;
         if (coronal < CENTRAL_RADIUS_MM) {
             quadrant = "central/retroareolar";
-        } else if (upper && outer && coronal > AXILLARY_TAIL_MIN_MM
-                && Math.abs(Math.toDegrees(Math.atan2(dz, lateral)) - 45) <= 45 && dz > 0.5 * lateral) {
+        } else if (upper && outer && coronal > AXILLARY_TAIL_MIN_MM && dz > 0.5 * lateral) {
+            // Upper-outer beyond the radius and more than atan(1/2) ≈ 26.6° above lateral (see class doc).
             quadrant = "axillary tail";
         } else {
             quadrant = (upper ? "upper" : "lower") + "-" + (outer ? "outer" : "inner");

@@ -76,6 +76,23 @@ class DescriptorsTest {
     }
 
     @Test
+    void axillaryTailIsTheUpperOuterSectorAboveHalfTheLateralOffsetBeyondSeventyMm() {
+        // Hand-computed against the class doc: upper-outer, coronal distance > 70 mm, dz > lateral / 2.
+        // lateral 80, dz 41 > 40: coronal √(80² + 41²) ≈ 89.9 mm → tail; dz 39 < 40 → upper-outer.
+        assertEquals("axillary tail", right(80, -30, 41).quadrant());
+        assertEquals("upper-outer", right(80, -30, 39).quadrant());
+        assertEquals("axillary tail", left(-80, -30, 41).quadrant());
+        assertEquals("upper-outer", left(-80, -30, 39).quadrant());
+        // Straight superior (12 o'clock) beyond 70 mm is inside the sector.
+        assertEquals("axillary tail", right(0, -30, 80).quadrant());
+        assertEquals("axillary tail", left(0, -30, 80).quadrant());
+        // Inside the sector but √(50² + 48²) ≈ 69.3 mm ≤ 70 mm from the nipple: upper-outer.
+        assertEquals("upper-outer", right(50, -30, 48).quadrant());
+        // Upper-inner at the same distance is never the tail.
+        assertEquals("upper-inner", right(-60, -30, 60).quadrant());
+    }
+
+    @Test
     void depthThirdsAndDistance() {
         // Nipple at y = 100, chest wall at y = 40: 60 mm; thirds at 20 and 40 mm behind the nipple.
         assertEquals("anterior", right(0, -10, 25).depthThird());
