@@ -22,7 +22,8 @@ import org.turnmark.geom.ResearchUse;
  * {@code lesions.csv}: one row per lesion and method (plus the prone mark itself), RFC 4180 quoting,
  * UTF-8. The first line is {@code # } followed by the caution; the second is the header. Coordinates
  * are world RAS mm with 3 decimals (1 µm, far below any image resolution); semi-axes are those of
- * the 95 % ellipsoid; empty cells mean "not computed" (for example no uncertainty without samples).
+ * the 95 % ellipsoid; empty cells mean "not computed" (for example no uncertainty without samples, or
+ * no depth from the chest wall when the model has no chest-wall surface).
  */
 public final class LesionsCsv {
 
@@ -110,7 +111,9 @@ public final class LesionsCsv {
         m.put("distance_from_nipple_cm", String.format(Locale.ROOT, "%.2f", d.distanceFromNippleCm()));
         m.put("depth_third", d.depthThird());
         m.put("depth_from_skin_mm", mm(d.depthFromSkinMm()));
-        m.put("depth_from_chest_wall_mm", mm(d.depthFromChestWallMm()));
+        if (d.depthFromChestWallMm() != null) {
+            m.put("depth_from_chest_wall_mm", mm(d.depthFromChestWallMm()));
+        }
     }
 
     private static String mm(double v) {

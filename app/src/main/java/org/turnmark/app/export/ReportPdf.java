@@ -188,15 +188,22 @@ public final class ReportPdf {
                 + "depth third along nipple to chest wall; distance from the nipple in cm. Descriptors are per "
                 + "posture: clock positions change more than distances between postures.", 8);
         for (LesionsCsv.Row r : LesionsCsv.rows(plan)) {
-            p.wrapped(String.format(Locale.ROOT, "%s %s | %s [%s] | (%s, %s, %s) mm | 95%% axes %s/%s/%s mm | %s %s, "
-                            + "%s third, %s cm from nipple, %s mm below skin, %s mm above chest wall%s",
-                    r.get("lesion_id"), r.get("side"), r.get("method"), r.get("frame"), r.get("x_mm"), r.get("y_mm"),
-                    r.get("z_mm"), dash(r.get("semi_axis_1_mm_95")), dash(r.get("semi_axis_2_mm_95")),
-                    dash(r.get("semi_axis_3_mm_95")), r.get("clock"), r.get("quadrant"), r.get("depth_third"),
-                    r.get("distance_from_nipple_cm"), r.get("depth_from_skin_mm"), r.get("depth_from_chest_wall_mm"),
-                    r.get("error_vs_truth_mm").isEmpty() ? "" : " | error vs truth " + r.get("error_vs_truth_mm") + " mm"), 8);
+            p.wrapped(tableLine(r), 8);
             p.gap(2);
         }
+    }
+
+    /** One line of the coordinates and descriptors table, from a {@code lesions.csv} row. */
+    static String tableLine(LesionsCsv.Row r) {
+        String wall = r.get("depth_from_chest_wall_mm");
+        return String.format(Locale.ROOT, "%s %s | %s [%s] | (%s, %s, %s) mm | 95%% axes %s/%s/%s mm | %s %s, "
+                        + "%s third, %s cm from nipple, %s mm below skin, %s%s",
+                r.get("lesion_id"), r.get("side"), r.get("method"), r.get("frame"), r.get("x_mm"), r.get("y_mm"),
+                r.get("z_mm"), dash(r.get("semi_axis_1_mm_95")), dash(r.get("semi_axis_2_mm_95")),
+                dash(r.get("semi_axis_3_mm_95")), r.get("clock"), r.get("quadrant"), r.get("depth_third"),
+                r.get("distance_from_nipple_cm"), r.get("depth_from_skin_mm"),
+                wall.isEmpty() ? "depth from chest wall not available (no chest-wall surface)" : wall + " mm above chest wall",
+                r.get("error_vs_truth_mm").isEmpty() ? "" : " | error vs truth " + r.get("error_vs_truth_mm") + " mm");
     }
 
     private static String dash(String s) {

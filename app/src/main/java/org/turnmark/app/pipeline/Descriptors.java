@@ -47,11 +47,12 @@ public final class Descriptors {
      *                              wall (clamped)
      * @param depthThird            "anterior", "middle" or "posterior"
      * @param depthFromSkinMm       shortest distance to the skin surface, mm
-     * @param depthFromChestWallMm  shortest distance to the chest-wall surface, mm
+     * @param depthFromChestWallMm  shortest distance to the chest-wall surface, mm; null (unknown, not
+     *                              zero) when the model has no chest-wall surface
      */
     public record Descriptor(String side, double clockHour, String clock, String quadrant,
                              double distanceFromNippleCm, double depthFraction, String depthThird,
-                             double depthFromSkinMm, double depthFromChestWallMm) {
+                             double depthFromSkinMm, Double depthFromChestWallMm) {
 
         /** The report-order summary, e.g. "left breast, 2:00, upper-outer, middle third, 4.5 cm from the nipple". */
         public String summary() {
@@ -72,10 +73,11 @@ public final class Descriptors {
      * @param chestWallRasMm       the chest-wall point behind the nipple (for the depth third): the
      *                             nearest chest-wall surface point to the nipple
      * @param depthFromSkinMm      shortest distance from the lesion to the skin surface (≥ 0)
-     * @param depthFromChestWallMm shortest distance from the lesion to the chest wall (≥ 0)
+     * @param depthFromChestWallMm shortest distance from the lesion to the chest wall (≥ 0); null when
+     *                             there is no chest-wall surface (kept null in the result)
      */
     public static Descriptor compute(String side, double[] lesionRasMm, double[] nippleRasMm, double[] chestWallRasMm,
-                                     double depthFromSkinMm, double depthFromChestWallMm) {
+                                     double depthFromSkinMm, Double depthFromChestWallMm) {
         boolean right;
         if ("right".equals(side)) {
             right = true;
@@ -126,6 +128,7 @@ public final class Descriptors {
         f = Math.max(0, Math.min(1, f));
         String third = f < 1.0 / 3.0 ? "anterior" : f < 2.0 / 3.0 ? "middle" : "posterior";
         return new Descriptor(side, hour, clock, quadrant, dist / 10.0, f, third,
-                Math.max(0, depthFromSkinMm), Math.max(0, depthFromChestWallMm));
+                Math.max(0, depthFromSkinMm),
+                depthFromChestWallMm == null ? null : Double.valueOf(Math.max(0, depthFromChestWallMm)));
     }
 }

@@ -409,7 +409,8 @@ public final class Planner {
         double[] tmp = new double[3];
         double[] wall = new double[3];
         double dSkin = s.closestSkin(nodes, x, tmp);
-        double dWall = s.hasChestWall() ? s.closestChestWall(nodes, x, tmp) : 0;
+        // No chest-wall surface: the depth from it is unknown (null), not 0.
+        Double dWall = s.hasChestWall() ? Double.valueOf(s.closestChestWall(nodes, x, tmp)) : null;
         if (s.hasChestWall()) {
             s.closestChestWall(nodes, nipple, wall);
         } else {

@@ -3,6 +3,7 @@ package org.turnmark.app.export;
 import static org.junit.jupiter.api.Assertions.assertArrayEquals;
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertNull;
 import static org.junit.jupiter.api.Assertions.assertThrows;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
@@ -68,6 +69,27 @@ class ExportTest {
         assertEquals(Math.sqrt(7.81473 * Ellipsoid.of(new double[3], new double[] {9, 1, 0, 1, 4, 0, 0, 0, 1}, 0.95)
                 .eigenvalues()[0]), mech.number("semi_axis_1_mm_95"), 1e-3);
         assertEquals("", rows.get(2).get("sd_x_mm"), "no uncertainty for that method: blank");
+    }
+
+    @Test
+    void unknownDepthFromChestWallIsBlankInCsvAbsentInJsonAndNotAvailableInTheReport() throws IOException {
+        PlanResult plan = PlanFixtures.plan(null);
+        Path csv = dir.resolve("lesions.csv");
+        LesionsCsv.write(plan, csv);
+        List<LesionsCsv.Row> rows = LesionsCsv.read(csv);
+        assertEquals("", rows.get(0).get("depth_from_chest_wall_mm"), "blank, not 0.000");
+        assertEquals("12.500", rows.get(0).get("depth_from_skin_mm"));
+        Path json = dir.resolve("plan.json");
+        PlanJson.write(plan, json);
+        assertFalse(Files.readString(json).contains("depth_from_chest_wall_mm"), "absent values are omitted");
+        assertNull(PlanJson.read(json).lesions().get(0).proneDescriptors().depthFromChestWallMm());
+        String line = ReportPdf.tableLine(LesionsCsv.rows(plan).get(0));
+        assertTrue(line.contains("depth from chest wall not available"), line);
+        assertFalse(line.contains("mm above chest wall"), line);
+        // With a chest wall the same cells carry the value.
+        PlanResult known = PlanFixtures.plan();
+        assertEquals("30.250", LesionsCsv.rows(known).get(0).get("depth_from_chest_wall_mm"));
+        assertTrue(ReportPdf.tableLine(LesionsCsv.rows(known).get(0)).contains("30.250 mm above chest wall"));
     }
 
     @Test

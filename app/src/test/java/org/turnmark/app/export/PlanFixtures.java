@@ -18,13 +18,18 @@ final class PlanFixtures {
     }
 
     static PlanResult plan() {
+        return plan(30.25);
+    }
+
+    /** The plan with the given depth from the chest wall (mm; null: the model has no chest-wall surface). */
+    static PlanResult plan(Double depthFromChestWallMm) {
         CaseFile input = new CaseFile(1, "fixture, \"quoted\"", "invented", "/tmp/prone.nii.gz", null, null, "left",
                 List.of(new CaseFile.LesionMark("L1", "left", new double[] {-60, 80, 10}, null, 5.0, null, null)),
                 List.of(new CaseFile.NippleMark("left", new double[] {-80, 120, 0})), null,
                 new CaseFile.ModelOptions(6.0, "sliding", 9.80665), null, new CaseFile.UncertaintyOptions(12, "sobol", 1L),
                 null, null);
         Descriptors.Descriptor prone = Descriptors.compute("left", new double[] {-60, 80, 10},
-                new double[] {-80, 120, 0}, new double[] {-80, 40, 0}, 12.5, 30.25);
+                new double[] {-80, 120, 0}, new double[] {-80, 40, 0}, 12.5, depthFromChestWallMm);
         double[] cov = {9, 1, 0, 1, 4, 0, 0, 0, 1};
         Ellipsoid e95 = Ellipsoid.of(new double[] {-65, 50, 20}, cov, 0.95);
         Ellipsoid e68 = Ellipsoid.of(new double[] {-65, 50, 20}, cov, 0.6827);

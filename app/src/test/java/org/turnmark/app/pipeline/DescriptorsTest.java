@@ -1,6 +1,7 @@
 package org.turnmark.app.pipeline;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertNull;
 import static org.junit.jupiter.api.Assertions.assertThrows;
 
 import org.junit.jupiter.api.Test;
@@ -18,11 +19,11 @@ class DescriptorsTest {
     private static final double[] WALL_L = {-80, 40, 0};
 
     private static Descriptors.Descriptor right(double dx, double dy, double dz) {
-        return Descriptors.compute("right", new double[] {80 + dx, 100 + dy, dz}, NIPPLE_R, WALL_R, 10, 20);
+        return Descriptors.compute("right", new double[] {80 + dx, 100 + dy, dz}, NIPPLE_R, WALL_R, 10, 20.0);
     }
 
     private static Descriptors.Descriptor left(double dx, double dy, double dz) {
-        return Descriptors.compute("left", new double[] {-80 + dx, 100 + dy, dz}, NIPPLE_L, WALL_L, 10, 20);
+        return Descriptors.compute("left", new double[] {-80 + dx, 100 + dy, dz}, NIPPLE_L, WALL_L, 10, 20.0);
     }
 
     @Test
@@ -104,8 +105,17 @@ class DescriptorsTest {
     }
 
     @Test
+    void depthFromChestWallIsKeptUnknownWithoutAChestWallAndClampedAtZeroOtherwise() {
+        Descriptors.Descriptor none = Descriptors.compute("right", new double[] {80, 70, 25}, NIPPLE_R, WALL_R, 10,
+                null);
+        assertNull(none.depthFromChestWallMm(), "no chest-wall surface: unknown, not 0 mm");
+        assertEquals(0.0, Descriptors.compute("right", new double[] {80, 70, 25}, NIPPLE_R, WALL_R, 10, -0.5)
+                .depthFromChestWallMm(), 0.0);
+    }
+
+    @Test
     void unknownSideIsRejected() {
         assertThrows(IllegalArgumentException.class,
-                () -> Descriptors.compute("both", new double[3], NIPPLE_R, WALL_R, 0, 0));
+                () -> Descriptors.compute("both", new double[3], NIPPLE_R, WALL_R, 0, 0.0));
     }
 }
