@@ -20,8 +20,10 @@ import org.turnmark.geom.ResearchUse;
 
 /**
  * {@code lesions.csv}: one row per lesion and method (plus the prone mark itself), RFC 4180 quoting,
- * UTF-8. The first line is {@code # } followed by the caution; the second is the header. Coordinates
- * are world RAS mm with 3 decimals (1 µm, far below any image resolution); semi-axes are those of
+ * UTF-8. The first line is {@code # } followed by the caution; the second is the header. Every numeric
+ * column name carries its unit. Coordinates ({@code x_ras_mm}, {@code y_ras_mm}, {@code z_ras_mm}) are
+ * world RAS+ mm of the image named in {@code frame}, with 3 decimals (1 µm, far below any image
+ * resolution); the standard deviations ({@code sd_x_ras_mm}, …) are along the same axes; semi-axes are those of
  * the 95 % ellipsoid; empty cells mean "not computed" (for example no uncertainty without samples, or
  * no depth from the chest wall when the model has no chest-wall surface).
  */
@@ -29,7 +31,7 @@ public final class LesionsCsv {
 
     /** Column names, in order. */
     public static final List<String> COLUMNS = List.of("case_id", "lesion_id", "side", "method", "frame",
-            "x_mm", "y_mm", "z_mm", "displacement_mm", "sd_x_mm", "sd_y_mm", "sd_z_mm",
+            "x_ras_mm", "y_ras_mm", "z_ras_mm", "displacement_mm", "sd_x_ras_mm", "sd_y_ras_mm", "sd_z_ras_mm",
             "semi_axis_1_mm_95", "semi_axis_2_mm_95", "semi_axis_3_mm_95",
             "clock", "quadrant", "distance_from_nipple_cm", "depth_third", "depth_from_skin_mm",
             "depth_from_chest_wall_mm", "error_vs_truth_mm");
@@ -69,9 +71,9 @@ public final class LesionsCsv {
                 double[] d = p.displacementMm();
                 r.put("displacement_mm", mm(Math.sqrt(d[0] * d[0] + d[1] * d[1] + d[2] * d[2])));
                 if (p.covarianceMm2() != null) {
-                    r.put("sd_x_mm", mm(Math.sqrt(p.covarianceMm2()[0])));
-                    r.put("sd_y_mm", mm(Math.sqrt(p.covarianceMm2()[4])));
-                    r.put("sd_z_mm", mm(Math.sqrt(p.covarianceMm2()[8])));
+                    r.put("sd_x_ras_mm", mm(Math.sqrt(p.covarianceMm2()[0])));
+                    r.put("sd_y_ras_mm", mm(Math.sqrt(p.covarianceMm2()[4])));
+                    r.put("sd_z_ras_mm", mm(Math.sqrt(p.covarianceMm2()[8])));
                 }
                 if (p.ellipsoid95() != null) {
                     for (int i = 0; i < 3; i++) {
@@ -96,9 +98,9 @@ public final class LesionsCsv {
         m.put("side", side);
         m.put("method", method);
         m.put("frame", frame);
-        m.put("x_mm", mm(xyz[0]));
-        m.put("y_mm", mm(xyz[1]));
-        m.put("z_mm", mm(xyz[2]));
+        m.put("x_ras_mm", mm(xyz[0]));
+        m.put("y_ras_mm", mm(xyz[1]));
+        m.put("z_ras_mm", mm(xyz[2]));
         return m;
     }
 

@@ -196,10 +196,10 @@ public final class ReportPdf {
     /** One line of the coordinates and descriptors table, from a {@code lesions.csv} row. */
     static String tableLine(LesionsCsv.Row r) {
         String wall = r.get("depth_from_chest_wall_mm");
-        return String.format(Locale.ROOT, "%s %s | %s [%s] | (%s, %s, %s) mm | 95%% axes %s/%s/%s mm | %s %s, "
+        return String.format(Locale.ROOT, "%s %s | %s [%s] | RAS (%s, %s, %s) mm | 95%% axes %s/%s/%s mm | %s %s, "
                         + "%s third, %s cm from nipple, %s mm below skin, %s%s",
-                r.get("lesion_id"), r.get("side"), r.get("method"), r.get("frame"), r.get("x_mm"), r.get("y_mm"),
-                r.get("z_mm"), dash(r.get("semi_axis_1_mm_95")), dash(r.get("semi_axis_2_mm_95")),
+                r.get("lesion_id"), r.get("side"), r.get("method"), r.get("frame"), r.get("x_ras_mm"),
+                r.get("y_ras_mm"), r.get("z_ras_mm"), dash(r.get("semi_axis_1_mm_95")), dash(r.get("semi_axis_2_mm_95")),
                 dash(r.get("semi_axis_3_mm_95")), r.get("clock"), r.get("quadrant"), r.get("depth_third"),
                 r.get("distance_from_nipple_cm"), r.get("depth_from_skin_mm"),
                 wall.isEmpty() ? "depth from chest wall not available (no chest-wall surface)" : wall + " mm above chest wall",

@@ -64,11 +64,31 @@ class ExportTest {
         assertEquals("fixture, \"quoted\"", rows.get(0).get("case_id"), "RFC 4180 quoting survives");
         LesionsCsv.Row mech = rows.get(1);
         assertEquals(PlanResult.MECHANICS, mech.get("method"));
-        assertEquals(-65, mech.number("x_mm"), CSV_ROUNDING_MM);
-        assertEquals(3.0, mech.number("sd_x_mm"), CSV_ROUNDING_MM);
+        assertEquals(-65, mech.number("x_ras_mm"), CSV_ROUNDING_MM);
+        assertEquals(3.0, mech.number("sd_x_ras_mm"), CSV_ROUNDING_MM);
         assertEquals(Math.sqrt(7.81473 * Ellipsoid.of(new double[3], new double[] {9, 1, 0, 1, 4, 0, 0, 0, 1}, 0.95)
                 .eigenvalues()[0]), mech.number("semi_axis_1_mm_95"), 1e-3);
-        assertEquals("", rows.get(2).get("sd_x_mm"), "no uncertainty for that method: blank");
+        assertEquals("", rows.get(2).get("sd_x_ras_mm"), "no uncertainty for that method: blank");
+    }
+
+    @Test
+    void lesionsCsvHeaderNamesTheFrameAndEveryNumericColumnItsUnit() throws IOException {
+        Path f = dir.resolve("lesions.csv");
+        LesionsCsv.write(PlanFixtures.plan(), f);
+        assertEquals("case_id,lesion_id,side,method,frame,x_ras_mm,y_ras_mm,z_ras_mm,displacement_mm,"
+                + "sd_x_ras_mm,sd_y_ras_mm,sd_z_ras_mm,semi_axis_1_mm_95,semi_axis_2_mm_95,semi_axis_3_mm_95,"
+                + "clock,quadrant,distance_from_nipple_cm,depth_third,depth_from_skin_mm,depth_from_chest_wall_mm,"
+                + "error_vs_truth_mm", Files.readAllLines(f, StandardCharsets.UTF_8).get(1));
+        int numeric = 0;
+        for (LesionsCsv.Row r : LesionsCsv.read(f)) {
+            for (String c : LesionsCsv.COLUMNS) {
+                if (r.get(c).matches("-?[0-9]+(\\.[0-9]+)?")) {
+                    numeric++;
+                    assertTrue(c.matches(".*_(mm|cm)(_95)?"), "numeric column without a unit: " + c);
+                }
+            }
+        }
+        assertTrue(numeric > 20, "sanity: the fixture has numeric cells, found " + numeric);
     }
 
     @Test
