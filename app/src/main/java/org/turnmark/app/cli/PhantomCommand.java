@@ -10,6 +10,7 @@ import org.turnmark.app.phantom.PhantomCase;
 import org.turnmark.app.phantom.PhantomGenerator;
 import org.turnmark.app.phantom.PhantomOptions;
 import org.turnmark.app.phantom.PhantomWriter;
+import org.turnmark.app.phantom.TruthMechanics;
 import org.turnmark.geom.Progress;
 import org.turnmark.mechanics.solve.SolverDivergedException;
 
@@ -66,6 +67,11 @@ final class PhantomCommand implements Callable<Integer> {
     @Option(names = "--element-mm", defaultValue = "5", description = "Element size of the truth model, mm (2-10; default ${DEFAULT-VALUE}).")
     private double elementMm;
 
+    @Option(names = "--truth", defaultValue = "default", description = {
+        "Truth conditions: default (deliberately different from the planner's defaults) or priors (one draw",
+        "from the planner's default priors, for calibrating its ellipsoids; default ${DEFAULT-VALUE})."})
+    private String truth;
+
     @Option(names = "--case-id", description = "Case name for case.json and the README (default: the output folder name).")
     private String caseId;
 
@@ -86,7 +92,7 @@ final class PhantomCommand implements Callable<Integer> {
         PhantomOptions o;
         try {
             o = new PhantomOptions(seed, spacingMm, breasts, side, breastMl, projection, ptosis, lesionMm, lesions,
-                    PhantomOptions.Contrast.parse(contrast), snr, elementMm);
+                    PhantomOptions.Contrast.parse(contrast), snr, elementMm, PhantomOptions.Truth.parse(truth));
         } catch (IllegalArgumentException e) {
             throw new UserInputException(e.getMessage(), e);
         }
@@ -98,6 +104,9 @@ final class PhantomCommand implements Callable<Integer> {
         } catch (SolverDivergedException e) {
             throw new ProcessingException("the truth finite-element solve did not converge: " + e.getMessage()
                     + "; try another --seed or a larger --element-mm", e);
+        } catch (TruthMechanics.PriorDrawNotSolvedException e) {
+            throw new ProcessingException(e.getMessage() + "; this seed's draw is too extreme for the truth "
+                    + "model: try another --seed", e);
         }
         String id = caseId != null ? caseId : out.toAbsolutePath().normalize().getFileName().toString();
         PhantomWriter.write(c, out, id, commandLine(o, id), overwrite);
@@ -113,10 +122,11 @@ final class PhantomCommand implements Callable<Integer> {
     private String commandLine(PhantomOptions o, String id) {
         return String.format(Locale.ROOT, "turnmark phantom --seed %d --spacing-mm %s --breasts %d --side %s "
                         + "--breast-ml %s --projection %s --ptosis %s --lesion-mm %s --lesions %d --contrast %s "
-                        + "--snr %s --element-mm %s --case-id %s --out %s",
+                        + "--snr %s --element-mm %s%s --case-id %s --out %s",
                 o.seed(), num(o.spacingMm()), o.breasts(), o.side(), num(o.breastVolumeMl()), num(o.projection()),
                 num(o.ptosis()), num(o.lesionDiameterMm()), o.lesionCount(),
-                o.contrast().name().toLowerCase(Locale.ROOT), num(o.snr()), num(o.elementMm()), id, id);
+                o.contrast().name().toLowerCase(Locale.ROOT), num(o.snr()), num(o.elementMm()),
+                o.truth() == PhantomOptions.Truth.DEFAULT ? "" : " --truth " + o.truth().key(), id, id);
     }
 
     private static String num(double v) {

@@ -5,7 +5,7 @@ import java.util.Locale;
 /**
  * Validated settings of one synthetic case. Lengths in mm, volumes in ml (cm³), angles in degrees.
  *
- * @param seed              seed of every random choice (anatomy, truth materials, bias, noise)
+ * @param seed              seed of every random choice (anatomy, truth conditions, bias, noise)
  * @param spacingMm         isotropic voxel spacing of the images, in [1, 5] mm
  * @param breasts           1 or 2 breasts
  * @param side              side of a single breast: "right" or "left" (ignored for two breasts)
@@ -17,10 +17,45 @@ import java.util.Locale;
  * @param contrast          MR-like contrast of the rendered images
  * @param snr               signal-to-noise ratio (mean breast-tissue signal / noise σ), in [3, 1000]
  * @param elementMm         hexahedral element size of the truth finite-element model, in [2, 10] mm
+ * @param truth             how the truth conditions are chosen ({@link Truth#DEFAULT}: deliberately
+ *                          different from the planner's defaults; {@link Truth#PRIORS}: one draw from
+ *                          the planner's default priors)
  */
 public record PhantomOptions(long seed, double spacingMm, int breasts, String side, double breastVolumeMl,
                              double projection, double ptosis, double lesionDiameterMm, int lesionCount,
-                             Contrast contrast, double snr, double elementMm) {
+                             Contrast contrast, double snr, double elementMm, Truth truth) {
+
+    /** How the truth conditions (materials, chest wall, supine gravity) of a case are chosen. */
+    public enum Truth {
+        /**
+         * Conditions that differ on purpose from the planner's defaults (per-tissue stiffness about
+         * the mechanics defaults, ν 0.47, scaled densities, sliding chest wall, gravity turned with the
+         * torso rotation); the bundled sample cases use this.
+         */
+        DEFAULT,
+        /**
+         * One random draw from the planner's default prior distribution (stiffness, ν, chest-wall
+         * condition, supine gravity roll and pitch), for calibrating the planner's ellipsoids.
+         */
+        PRIORS;
+
+        /** Parses "default" or "priors" (any case). */
+        public static Truth parse(String s) {
+            String v = s.trim().toLowerCase(Locale.ROOT);
+            if (v.equals("default")) {
+                return DEFAULT;
+            }
+            if (v.equals("priors")) {
+                return PRIORS;
+            }
+            throw new IllegalArgumentException("truth must be default or priors, got '" + s + "'");
+        }
+
+        /** The lower-case name used on the command line and in the truth files. */
+        public String key() {
+            return name().toLowerCase(Locale.ROOT);
+        }
+    }
 
     /** MR-like contrast. */
     public enum Contrast {
@@ -63,6 +98,23 @@ public record PhantomOptions(long seed, double spacingMm, int breasts, String si
         }
         range("snr", snr, 3, 1000);
         range("element_mm", elementMm, 2, 10);
+        if (truth == null) {
+            throw new IllegalArgumentException("truth must be given (default or priors)");
+        }
+    }
+
+    /** Options with the default truth conditions ({@link Truth#DEFAULT}). */
+    public PhantomOptions(long seed, double spacingMm, int breasts, String side, double breastVolumeMl,
+                          double projection, double ptosis, double lesionDiameterMm, int lesionCount,
+                          Contrast contrast, double snr, double elementMm) {
+        this(seed, spacingMm, breasts, side, breastVolumeMl, projection, ptosis, lesionDiameterMm, lesionCount,
+                contrast, snr, elementMm, Truth.DEFAULT);
+    }
+
+    /** These options with another way of choosing the truth conditions. */
+    public PhantomOptions withTruth(Truth t) {
+        return new PhantomOptions(seed, spacingMm, breasts, side, breastVolumeMl, projection, ptosis,
+                lesionDiameterMm, lesionCount, contrast, snr, elementMm, t);
     }
 
     /** Defaults: 2 mm voxels, one right breast of 350 ml, one 12 mm lesion, T1 contrast, SNR 25, 5 mm elements. */

@@ -187,6 +187,9 @@ public final class PhantomWriter {
         opts.put("contrast", o.contrast().name().toLowerCase(Locale.ROOT));
         opts.put("snr", o.snr());
         opts.put("element_mm", o.elementMm());
+        if (o.truth() != PhantomOptions.Truth.DEFAULT) {
+            opts.put("truth", o.truth().key());
+        }
         m.put("options", opts);
         m.put("snr_definition", "noise sigma = mean noise-free signal over breast-tissue voxels (labels 1, 2, 3, 5)"
                 + " / SNR; Rician magnitude noise");
@@ -262,8 +265,11 @@ public final class PhantomWriter {
         truth.put("lesion_centroids", "truth/lesion_centroids.csv");
         truth.put("landmarks", "truth/landmarks.csv");
         truth.put("lesions", truthLesions);
-        truth.put("notes", "Synthetic truth; conditions that differ from the planner's defaults are listed in"
-                + " README.md and truth/truth.json.");
+        truth.put("notes", c.options().truth() == PhantomOptions.Truth.PRIORS
+                ? "Synthetic truth drawn from the planner's default priors; the draw is listed in README.md and"
+                        + " truth/truth.json."
+                : "Synthetic truth; conditions that differ from the planner's defaults are listed in"
+                        + " README.md and truth/truth.json.");
         m.put("truth", truth);
         return m;
     }

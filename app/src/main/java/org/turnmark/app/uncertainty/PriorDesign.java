@@ -3,6 +3,7 @@ package org.turnmark.app.uncertainty;
 import java.util.ArrayList;
 import java.util.List;
 import java.util.Random;
+import java.util.random.RandomGenerator;
 
 import org.apache.commons.math3.distribution.NormalDistribution;
 import org.apache.commons.math3.random.SobolSequenceGenerator;
@@ -149,6 +150,23 @@ public final class PriorDesign {
         java.util.Arrays.fill(u, 0.5);
         // u = 0.5 gives "sliding" exactly when P(sliding) > 0.5; make 0.5 itself pick sliding too.
         u[Parameter.CHEST_WALL.ordinal()] = spec.slidingProbability() >= 0.5 ? 0 : 1;
+        return map(u);
+    }
+
+    /**
+     * One random draw from the priors: a point u uniform on the unit cube, one
+     * {@code rng.nextDouble()} per dimension in {@link Parameter} order, mapped by {@link #map} (the
+     * same inverse CDFs as the designs, so the draw follows exactly the distributions the planner
+     * samples). Used to draw phantom truth from the planner's priors.
+     *
+     * @param rng the random source (for example a seeded {@link java.util.SplittableRandom} or
+     *            {@link Random}); advanced by {@link #DIMENSIONS} doubles
+     */
+    public Sample draw(RandomGenerator rng) {
+        double[] u = new double[DIMENSIONS];
+        for (int d = 0; d < DIMENSIONS; d++) {
+            u[d] = rng.nextDouble();
+        }
         return map(u);
     }
 

@@ -34,7 +34,10 @@ import org.turnmark.geom.ResearchUse;
  * run by the command in docs/benchmarks.md, "Calibration of the 95 % ellipsoid").
  *
  * <p>For each seed it generates a phantom case with the project's generator (as {@code turnmark
- * phantom --seed N --spacing-mm S --element-mm E --lesions L}), runs the planner in-process on it (as
+ * phantom --seed N --spacing-mm S --element-mm E --lesions L --truth T}; by default {@code --truth priors}:
+ * the truth conditions are one draw from the planner's default priors, so the ellipsoids are checked
+ * against truth drawn from the distribution they claim; {@code --truth default} uses the generator's
+ * deliberately different default conditions), runs the planner in-process on it (as
  * {@code turnmark plan --samples K}, optionally with another {@code model.element_size_mm}) and, for
  * every lesion and every supine-frame prediction, measures the error e = truth − prediction (mm), the
  * squared Mahalanobis distance d² = eᵀ Σ⁻¹ e with the prediction's covariance Σ (mm²), and whether the
@@ -51,7 +54,8 @@ import org.turnmark.geom.ResearchUse;
  * mvn -B -q -DskipTests package
  * nice -n 19 java -Xmx6g -cp app/target/turnmark.jar:app/target/test-classes \
  *   org.turnmark.app.bench.BenchCalibration --from 1 --to 20 [--spacing-mm 4] [--element-mm 8] [--lesions 1] \
- *   [--samples 8] [--plan-element-mm H] [--threads N] [--work DIR] [--csv FILE] [--no-outputs]
+ *   [--samples 8] [--plan-element-mm H] [--truth priors|default] [--threads N] [--work DIR] [--csv FILE]
+ *   [--no-outputs]
  * </pre>
  */
 public final class BenchCalibration {
@@ -66,7 +70,8 @@ public final class BenchCalibration {
 
     /** Command-line settings. */
     record Settings(long from, long to, double spacingMm, double truthElementMm, int lesions, int samples,
-                    Double planElementMm, Integer threads, Path work, Path csv, boolean writeOutputs) {
+                    Double planElementMm, Integer threads, Path work, Path csv, boolean writeOutputs,
+                    PhantomOptions.Truth truth) {
     }
 
     /**
@@ -101,9 +106,9 @@ public final class BenchCalibration {
         Files.createDirectories(work);
 
         System.out.println("# " + ResearchUse.SHORT);
-        System.out.printf(Locale.ROOT, "seeds %d..%d, phantom %.3g mm voxels, truth elements %.3g mm, %d lesion(s); "
-                        + "plan: %d samples, elements %s; threads %d; load average at start %s%n",
-                s.from(), s.to(), s.spacingMm(), s.truthElementMm(), s.lesions(), s.samples(),
+        System.out.printf(Locale.ROOT, "seeds %d..%d, phantom %.3g mm voxels, truth elements %.3g mm, %d lesion(s), "
+                        + "truth %s; plan: %d samples, elements %s; threads %d; load average at start %s%n",
+                s.from(), s.to(), s.spacingMm(), s.truthElementMm(), s.lesions(), s.truth().key(), s.samples(),
                 s.planElementMm() == null ? "as in case.json" : fmt(s.planElementMm()) + " mm", Parallel.threads(),
                 loadAverage());
         System.out.println();
@@ -115,8 +120,8 @@ public final class BenchCalibration {
         List<String> failures = new ArrayList<>();
         List<double[]> caseTimes = new ArrayList<>();
         for (long seed = s.from(); seed <= s.to(); seed++) {
-            Path caseDir = work.resolve(String.format(Locale.ROOT, "phantom-seed%d-sp%s-el%s-les%d", seed,
-                    fmt(s.spacingMm()), fmt(s.truthElementMm()), s.lesions()));
+            Path caseDir = work.resolve(String.format(Locale.ROOT, "phantom-seed%d-sp%s-el%s-les%d-truth-%s", seed,
+                    fmt(s.spacingMm()), fmt(s.truthElementMm()), s.lesions(), s.truth().key()));
             Path planDir = work.resolve(caseDir.getFileName() + "-plan");
             try {
                 double tPhantom = phantom(s, seed, caseDir);
@@ -168,12 +173,13 @@ public final class BenchCalibration {
         PhantomOptions d = PhantomOptions.defaults(seed);
         PhantomOptions o = new PhantomOptions(seed, s.spacingMm(), d.breasts(), d.side(), d.breastVolumeMl(),
                 d.projection(), d.ptosis(), d.lesionDiameterMm(), s.lesions(), d.contrast(), d.snr(),
-                s.truthElementMm());
+                s.truthElementMm(), s.truth());
         long t0 = System.nanoTime();
         PhantomCase c = PhantomGenerator.generate(o, Progress.NONE);
         String id = dir.getFileName().toString();
         String command = String.format(Locale.ROOT, "turnmark phantom --seed %d --spacing-mm %s --element-mm %s "
-                + "--lesions %d --out %s", seed, fmt(s.spacingMm()), fmt(s.truthElementMm()), s.lesions(), id);
+                + "--lesions %d --truth %s --out %s", seed, fmt(s.spacingMm()), fmt(s.truthElementMm()), s.lesions(),
+                s.truth().key(), id);
         PhantomWriter.write(c, dir, id, command, true);
         return (System.nanoTime() - t0) * 1e-9;
     }
@@ -416,6 +422,7 @@ public final class BenchCalibration {
         Path work = null;
         Path csv = null;
         boolean write = true;
+        PhantomOptions.Truth truth = PhantomOptions.Truth.PRIORS;
         for (int i = 0; i < args.length; i++) {
             String a = args[i];
             switch (a) {
@@ -438,6 +445,7 @@ public final class BenchCalibration {
                             case "--samples" -> samples = Integer.parseInt(v);
                             case "--plan-element-mm" -> planElement = Double.parseDouble(v);
                             case "--threads" -> threads = Integer.parseInt(v);
+                            case "--truth" -> truth = PhantomOptions.Truth.parse(v);
                             case "--work" -> work = Path.of(v);
                             case "--csv" -> csv = Path.of(v);
                             default -> throw new IllegalArgumentException("unknown option " + a);
@@ -471,12 +479,14 @@ public final class BenchCalibration {
         PhantomOptions d = PhantomOptions.defaults(from);
         new PhantomOptions(from, spacing, d.breasts(), d.side(), d.breastVolumeMl(), d.projection(), d.ptosis(),
                 d.lesionDiameterMm(), lesions, d.contrast(), d.snr(), truthElement);
-        return new Settings(from, to, spacing, truthElement, lesions, samples, planElement, threads, work, csv, write);
+        return new Settings(from, to, spacing, truthElement, lesions, samples, planElement, threads, work, csv, write,
+                truth);
     }
 
     private static String usage() {
         return "usage: BenchCalibration --from SEED [--to SEED] [--spacing-mm 4] [--element-mm 8 (truth)] [--lesions 1]\n"
-                + "         [--samples 8] [--plan-element-mm H (default: case.json's)] [--threads N] [--work DIR (kept)]\n"
+                + "         [--samples 8] [--plan-element-mm H (default: case.json's)] [--truth priors|default (priors)]\n"
+                + "         [--threads N] [--work DIR (kept)]\n"
                 + "         [--csv FILE] [--no-outputs (skip writing the plan folder)]";
     }
 
