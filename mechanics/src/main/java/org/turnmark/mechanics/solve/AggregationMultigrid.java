@@ -24,6 +24,11 @@ import org.turnmark.geom.Parallel;
  *       J Comput Phys 188, 2003), the same before and after the coarse correction, so the V-cycle
  *       is symmetric positive definite; parallel and deterministic.</li>
  *   <li>Coarsest level (≤ {@value #COARSEST_MAX} unknowns): dense Cholesky.</li>
+ *   <li>The finest level smooths and forms its residual with a single-precision copy Ã of the
+ *       operator (half the memory traffic of the product that dominates the cost). The cycle is
+ *       then the symmetric V-cycle of Ã with the Galerkin coarse operator of A, still a symmetric
+ *       positive definite preconditioner for the conjugate gradients on A (rounding each entry
+ *       keeps Ã symmetric, and a relative perturbation of 1e−7 does not affect convergence).</li>
  * </ul>
  * {@link #refresh} keeps the hierarchy and only updates the finest-level smoother after the
  * matrix values change (within a Newton increment); the V-cycle remains SPD, only slightly less
@@ -36,6 +41,8 @@ final class AggregationMultigrid implements Preconditioner {
     static final double CHEBYSHEV_RATIO = 30;
     /** Power iterations for λ_max(D⁻¹A); the 1.1 safety factor covers their under-estimate. */
     static final int POWER_ITERATIONS = 12;
+    /** Power iterations of a refresh, warm-started from the previous dominant vector. */
+    static final int REFRESH_POWER_ITERATIONS = 4;
     static final double LAMBDA_SAFETY = 1.1;
     static final int MAX_LEVELS = 10;
     private static final int ROWS = 256;
@@ -43,11 +50,19 @@ final class AggregationMultigrid implements Preconditioner {
     private final double[] finePos;
     private final List<Level> levels = new ArrayList<>();
     private double[] coarseFactor;
+    /** Dominant-vector estimate of the finest level, kept across setups. */
+    private double[] fineEig;
+    /** Reused single-precision buffer of the finest operator. */
+    private float[] fineFloat;
     private int coarseN;
 
     /** One level: operator, smoother, and the prolongator from the next coarser level. */
     private static final class Level {
         BlockCsr a;
+        /** Single-precision copy of the finest operator's values for smoothing (null on coarse levels). */
+        float[] af;
+        /** Last power-iteration vector (dominant eigenvector estimate of D⁻¹A). */
+        double[] eig;
         final BlockJacobi dinv = new BlockJacobi();
         double lmax;
         double[] pos;
@@ -67,6 +82,15 @@ final class AggregationMultigrid implements Preconditioner {
         double[] z;
         double[] d;
         double[] t;
+
+        /** y = A x for smoothing and residuals: the single-precision copy where there is one. */
+        void mul(double[] x, double[] y) {
+            if (af != null) {
+                a.multiply(af, x, y);
+            } else {
+                a.multiply(x, y);
+            }
+        }
 
         void allocate() {
             int n = a.size();
@@ -91,8 +115,22 @@ final class AggregationMultigrid implements Preconditioner {
         l.pos = finePos;
         while (true) {
             l.allocate();
+            boolean fine = levels.isEmpty();
+            if (fine && l.a.b == 3) {
+                l.af = l.a.valuesAsFloat(fineFloat);
+                fineFloat = l.af;
+            }
             l.dinv.setup(l.a);
-            l.lmax = estimateLambdaMax(l);
+            if (fine && fineEig != null && fineEig.length == l.a.size()) {
+                // the finest operator changed little since the last setup (next Newton increment)
+                l.eig = fineEig;
+                l.lmax = refreshLambdaMax(l);
+            } else {
+                l.lmax = estimateLambdaMax(l);
+            }
+            if (fine) {
+                fineEig = l.eig;
+            }
             levels.add(l);
             int n = l.a.size();
             if (n <= COARSEST_MAX || levels.size() == MAX_LEVELS) {
@@ -130,8 +168,11 @@ final class AggregationMultigrid implements Preconditioner {
             setup(a);
             return;
         }
+        if (l.af != null) {
+            l.af = a.valuesAsFloat(l.af);
+        }
         l.dinv.setup(a);
-        l.lmax = estimateLambdaMax(l);
+        l.lmax = refreshLambdaMax(l);
     }
 
     int levelCount() {
@@ -160,7 +201,7 @@ final class AggregationMultigrid implements Preconditioner {
             return;
         }
         chebyshev(l, b, x, true);
-        l.a.multiply(x, l.t);
+        l.mul(x, l.t);
         for (int i = 0; i < b.length; i++) {
             l.r[i] = b[i] - l.t[i];
         }
@@ -182,7 +223,7 @@ final class AggregationMultigrid implements Preconditioner {
             System.arraycopy(b, 0, l.r, 0, n);
             Arrays.fill(x, 0);
         } else {
-            l.a.multiply(x, l.t);
+            l.mul(x, l.t);
             for (int i = 0; i < n; i++) {
                 l.r[i] = b[i] - l.t[i];
             }
@@ -200,7 +241,7 @@ final class AggregationMultigrid implements Preconditioner {
             if (k == CHEBYSHEV_DEGREE - 1) {
                 break;
             }
-            l.a.multiply(l.d, l.t);
+            l.mul(l.d, l.t);
             for (int i = 0; i < n; i++) {
                 l.r[i] -= l.t[i];
             }
@@ -215,6 +256,19 @@ final class AggregationMultigrid implements Preconditioner {
         }
     }
 
+    /**
+     * λ_max(D⁻¹A) after a small change of A: {@value #REFRESH_POWER_ITERATIONS} power iterations
+     * started from the dominant vector of the previous estimate, which is already close to the new
+     * one, instead of {@value #POWER_ITERATIONS} from a fixed start vector.
+     */
+    private static double refreshLambdaMax(Level l) {
+        if (l.eig == null) {
+            return estimateLambdaMax(l);
+        }
+        System.arraycopy(l.eig, 0, l.x, 0, l.eig.length);
+        return powerIterations(l, REFRESH_POWER_ITERATIONS);
+    }
+
     private static double estimateLambdaMax(Level l) {
         int n = l.a.size();
         double[] v = l.x;
@@ -224,17 +278,28 @@ final class AggregationMultigrid implements Preconditioner {
             s = s * 6364136223846793005L + 1442695040888963407L;
             v[i] = ((s >>> 11) * 0x1.0p-53) - 0.5;
         }
+        return powerIterations(l, POWER_ITERATIONS);
+    }
+
+    /** Power iterations on D⁻¹A from l.x; keeps the last vector in l.eig; returns the safe bound. */
+    private static double powerIterations(Level l, int iterations) {
+        int n = l.a.size();
+        double[] v = l.x;
         double lambda = 0;
-        for (int it = 0; it < POWER_ITERATIONS; it++) {
+        for (int it = 0; it < iterations; it++) {
             double vn = VecOps.norm(v);
             for (int i = 0; i < n; i++) {
                 v[i] /= vn;
             }
-            l.a.multiply(v, l.t);
+            l.mul(v, l.t);
             l.dinv.apply(l.t, l.z);
             lambda = VecOps.norm(l.z);
             System.arraycopy(l.z, 0, v, 0, n);
         }
+        if (l.eig == null || l.eig.length != n) {
+            l.eig = new double[n];
+        }
+        System.arraycopy(v, 0, l.eig, 0, n);
         return LAMBDA_SAFETY * lambda;
     }
 

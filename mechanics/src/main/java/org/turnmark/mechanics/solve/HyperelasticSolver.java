@@ -59,6 +59,20 @@ public final class HyperelasticSolver {
      */
     static final double MAX_SHIFT = 10;
 
+    /**
+     * Relative force residual at which an intermediate load increment (λ &lt; 1) is accepted. The
+     * equilibrium path of a hyperelastic body under dead loads does not depend on how exactly the
+     * intermediate states are found: they only start the next increment, whose change of load
+     * (tens of percent) is far larger than this error. The last increment (λ = 1) uses the
+     * configured tolerances.
+     */
+    static final double INTERMEDIATE_RESIDUAL = 1e-3;
+    /** Relative energy norm of an intermediate increment (≈ the square of its residual tolerance). */
+    static final double INTERMEDIATE_ENERGY = 1e-6;
+
+    /** Fraction of the Newton residual tolerance that the last linear solves aim for. */
+    static final double OVERSOLVE_MARGIN = 0.1;
+
     /** Largest relative tolerance of a linear solve (far from the solution). */
     static final double FORCING_MAX = 1e-2;
     /** Linear tolerance = this × relative force residual (bounded below by the configured floor). */
@@ -76,6 +90,8 @@ public final class HyperelasticSolver {
     private int shiftedIterations;
     /** Relative diagonal shift to try first in the next Newton iteration (0: plain Newton). */
     private double shift;
+    /** The shift that last made an indefinite tangent positive definite (kept across solves). */
+    private double shiftHint;
     private String lastFailure = "";
     private double lastResidual;
     /** Effective Newton tolerances (the configured ones unless loosened by {@link #setTolerances}). */
@@ -308,7 +324,10 @@ public final class HyperelasticSolver {
         record(st, rn / fnorm);
         double e0 = 0;
         double relE = 1;
-        if (rn <= residualTol * fnorm) {
+        // intermediate load increments only lead to the final one: converge them loosely
+        final double rTol = lambda < 1 ? Math.max(residualTol, INTERMEDIATE_RESIDUAL) : residualTol;
+        final double eTol = lambda < 1 ? Math.max(energyTol, INTERMEDIATE_ENERGY) : energyTol;
+        if (rn <= rTol * fnorm) {
             finish(st, w, rn, fnorm, 0, lambda, fext);
             return true;
         }
@@ -323,6 +342,10 @@ public final class HyperelasticSolver {
             // inexact Newton: forcing term proportional to the relative residual keeps the local
             // convergence quadratic (Dembo, Eisenstat & Steihaug, SIAM J Numer Anal 19, 1982)
             double eta = Math.max(cfg.linearTolerance(), Math.min(FORCING_MAX, FORCING_FACTOR * rn / fnorm));
+            // ... but never more accurate than the Newton tolerance needs: a linear residual of a
+            // tenth of the tolerance is below what this iteration must reach (Eisenstat & Walker,
+            // SIAM J Sci Comput 17, 1996, safeguard against oversolving)
+            eta = Math.max(eta, Math.min(FORCING_MAX, OVERSOLVE_MARGIN * rTol * fnorm / rn));
             if (!linearSolve(st, it == 1, eta)) {
                 return false;
             }
@@ -377,7 +400,7 @@ public final class HyperelasticSolver {
                 lastFailure = "non-finite residual";
                 return false;
             }
-            if (rn <= residualTol * fnorm && relE <= energyTol) {
+            if (rn <= rTol * fnorm && relE <= eTol) {
                 finish(st, w, rn, fnorm, relE, lambda, fext);
                 return true;
             }
@@ -392,7 +415,8 @@ public final class HyperelasticSolver {
      * increment) the consistent tangent of a compressed neo-Hookean body can be indefinite; then the
      * step uses K + τ·d̄·I instead (Levenberg–Marquardt regularisation; Nocedal &amp; Wright,
      * Numerical Optimization, §4 and §10.3), with d̄ the mean diagonal entry of K and τ raised by
-     * {@link #SHIFT_GROWTH} until the shifted matrix is positive definite. Any positive definite
+     * {@link #SHIFT_GROWTH} (from the shift that last worked, or {@link #MIN_SHIFT}) until the
+     * shifted matrix is positive definite. Any positive definite
      * matrix gives a descent direction for the energy line search; the shift is reduced by the
      * same factor on each following iteration, so the final iterations are plain Newton steps and
      * keep their quadratic convergence.
@@ -403,6 +427,7 @@ public final class HyperelasticSolver {
         boolean fullSetup = firstIteration;
         double applied = 0;
         double tau = shift;
+        boolean escalated = false;
         while (true) {
             try {
                 if (tau > 0) {
@@ -419,6 +444,9 @@ public final class HyperelasticSolver {
                 // iterate carries round-off-sized constrained components: remove them exactly
                 proj.project(st.du);
                 shift = tau / SHIFT_GROWTH < MIN_SHIFT ? 0 : tau / SHIFT_GROWTH;
+                if (escalated) {
+                    shiftHint = tau;
+                }
                 if (tau > 0) {
                     shiftedIterations++;
                 }
@@ -429,7 +457,10 @@ public final class HyperelasticSolver {
                             + (tau > 0 ? String.format(" (with a diagonal shift of %.3g × the mean diagonal)", tau) : "");
                     return false;
                 }
-                tau = tau == 0 ? MIN_SHIFT : tau * SHIFT_GROWTH;
+                // start from the shift that last cured an indefinite tangent (the same body in a
+                // similar state usually needs a similar shift), else from the smallest
+                tau = tau == 0 ? Math.max(MIN_SHIFT, shiftHint) : tau * SHIFT_GROWTH;
+                escalated = true;
                 // a shifted matrix has new coarse operators: rebuild the hierarchy
                 fullSetup = true;
             }

@@ -27,7 +27,7 @@ import org.turnmark.mechanics.solve.SolverConfig;
  * mvn -B -q -o -pl mechanics -am test-compile
  * java -Xmx4g -Djava.util.concurrent.ForkJoinPool.common.parallelism=2 \
  *   -cp mechanics/target/classes:mechanics/target/test-classes:geometry/target/classes \
- *   org.turnmark.mechanics.bench.BenchMechanics [forward|jacobi|reload|all]
+ *   org.turnmark.mechanics.bench.BenchMechanics [forward|jacobi|reload|all] [reference tolerance mm]
  * </pre>
  */
 public final class BenchMechanics {
@@ -51,7 +51,7 @@ public final class BenchMechanics {
             forward(LinearSolverKind.PCG_BLOCK_JACOBI, 1);
         }
         if (what.equals("reload") || what.equals("all")) {
-            reload();
+            reload(args.length > 1 ? Double.parseDouble(args[1]) : ReferenceStateConfig.defaults().toleranceMm());
         }
         System.out.println("load average at end " + Files.readString(Path.of("/proc/loadavg")).trim());
     }
@@ -77,7 +77,7 @@ public final class BenchMechanics {
      * Prone → reference → supine on a half-ellipsoid 180 × 65 × 210 mm at 4 mm elements (≈ 20,000
      * hexahedra); the chest wall slides except a 12 mm rim, which is fixed.
      */
-    private static void reload() {
+    private static void reload(double toleranceMm) {
         double ax = 90;
         double ay = 65;
         double az = 105;
@@ -88,7 +88,8 @@ public final class BenchMechanics {
         double c0 = cpu();
         long t0 = System.nanoTime();
         ReferenceStateResult ref = ReferenceStateSolver.solve(prone, MaterialTable.DEFAULTS, bc, PRONE, cfg,
-                ReferenceStateConfig.defaults(), Progress.NONE);
+                new ReferenceStateConfig(toleranceMm, ReferenceStateConfig.defaults().maxIterations(),
+                        ReferenceStateConfig.defaults().andersonDepth()), Progress.NONE);
         double tRef = (System.nanoTime() - t0) * 1e-9;
         double cRef = cpu() - c0;
         long t1 = System.nanoTime();
@@ -100,8 +101,8 @@ public final class BenchMechanics {
         for (double m : ref.mismatchHistoryMm()) {
             hist.append(String.format("%.3g ", m));
         }
-        System.out.printf("| reference state (%d forward solves, mismatch mm: %s) | %d | %d | %s | - | %d | %d | %.2f | %.2f | %d |%n",
-                ref.iterations(), hist.toString().trim(), prone.elementCount(), prone.nodeCount(), cfg.linearSolver(),
+        System.out.printf("| reference state to %.2f mm (%d forward solves, mismatch mm: %s) | %d | %d | %s | - | %d | %d | %.2f | %.2f | %d |%n",
+                toleranceMm, ref.iterations(), hist.toString().trim(), prone.elementCount(), prone.nodeCount(), cfg.linearSolver(),
                 ref.newtonIterations(), ref.linearIterations(), tRef, cRef, peakMb());
         System.out.printf("| supine reload (max |u| %.1f mm) | %d | %d | %s | %d (%d) | %d | %d | %.2f | %.2f | %d |%n",
                 sup.maxDisplacementMm(), prone.elementCount(), prone.nodeCount(), cfg.linearSolver(), sup.loadSteps(),
