@@ -37,51 +37,75 @@ class PriorDrawTest {
     /** KS test significance: reject the normal law of ln μ only below this p-value. */
     private static final double KS_ALPHA = 1e-3;
 
-    @Test
-    void drawsFollowTheSpecsDistributions() {
-        PriorDesign design = new PriorDesign(SPEC);
-        SplittableRandom rng = new SplittableRandom(20261202L);
-        double[][] lnMu = new double[4][N];
-        double[] nu = new double[N];
-        double[] roll = new double[N];
-        double[] pitch = new double[N];
-        int sliding = 0;
-        for (int i = 0; i < N; i++) {
-            PriorDesign.Sample s = design.draw(rng);
-            for (int t = 0; t < 4; t++) {
-                lnMu[t][i] = Math.log(s.muKpa()[t]);
+    /** N draws from the spec with a fixed seed, as columns. */
+    private static final Draws DRAWS = new Draws();
+
+    private static final class Draws {
+        final double[][] lnMu = new double[4][N];
+        final double[] nu = new double[N];
+        final double[] roll = new double[N];
+        final double[] pitch = new double[N];
+        final int sliding;
+
+        Draws() {
+            PriorDesign design = new PriorDesign(SPEC);
+            SplittableRandom rng = new SplittableRandom(20261202L);
+            int sl = 0;
+            for (int i = 0; i < N; i++) {
+                PriorDesign.Sample s = design.draw(rng);
+                for (int t = 0; t < 4; t++) {
+                    lnMu[t][i] = Math.log(s.muKpa()[t]);
+                }
+                nu[i] = s.nu();
+                roll[i] = s.gravityRollDeg();
+                pitch[i] = s.gravityPitchDeg();
+                sl += s.sliding() ? 1 : 0;
             }
-            nu[i] = s.nu();
-            roll[i] = s.gravityRollDeg();
-            pitch[i] = s.gravityPitchDeg();
-            sliding += s.sliding() ? 1 : 0;
+            sliding = sl;
         }
+    }
+
+    @Test
+    void stiffnessIsLogNormalWithTheSpecsMedianAndGsd() {
         KolmogorovSmirnovTest ks = new KolmogorovSmirnovTest();
         for (int t = 0; t < 4; t++) {
             double mu = Math.log(SPEC.muMedianKpa()[t]);
             double sigma = Math.log(SPEC.muGeometricSd()[t]);
-            assertEquals(mu, mean(lnMu[t]), K * sigma / Math.sqrt(N), "mean of ln mu, tissue " + t);
-            assertEquals(sigma, sd(lnMu[t]), SD_REL_TOL * sigma, "SD of ln mu, tissue " + t);
-            double p = ks.kolmogorovSmirnovTest(new NormalDistribution(null, mu, sigma), lnMu[t]);
+            double[] x = DRAWS.lnMu[t];
+            assertEquals(mu, mean(x), K * sigma / Math.sqrt(N), "mean of ln mu, tissue " + t);
+            assertEquals(sigma, sd(x), SD_REL_TOL * sigma, "SD of ln mu, tissue " + t);
+            double p = ks.kolmogorovSmirnovTest(new NormalDistribution(null, mu, sigma), x);
             assertTrue(p > KS_ALPHA, "ln mu of tissue " + t + " is not normal: KS p = " + p);
         }
+    }
+
+    @Test
+    void poissonRatioIsUniformOnTheSpecsRange() {
         double lo = SPEC.nuMin();
         double hi = SPEC.nuMax();
-        for (double v : nu) {
+        for (double v : DRAWS.nu) {
             assertTrue(v >= lo && v <= hi, "nu " + v + " outside [" + lo + ", " + hi + "]");
         }
         // Uniform on [lo, hi]: mean (lo + hi)/2, SD (hi − lo)/√12.
         double nuSd = (hi - lo) / Math.sqrt(12);
-        assertEquals(0.5 * (lo + hi), mean(nu), K * nuSd / Math.sqrt(N), "mean of nu");
-        assertEquals(nuSd, sd(nu), SD_REL_TOL * nuSd, "SD of nu");
+        assertEquals(0.5 * (lo + hi), mean(DRAWS.nu), K * nuSd / Math.sqrt(N), "mean of nu");
+        assertEquals(nuSd, sd(DRAWS.nu), SD_REL_TOL * nuSd, "SD of nu");
+    }
+
+    @Test
+    void chestWallSlidesWithTheSpecsProbability() {
         // Bernoulli(p): standard error √(p(1 − p)/N).
         double p = SPEC.slidingProbability();
-        assertEquals(p, sliding / (double) N, K * Math.sqrt(p * (1 - p) / N), "sliding fraction");
+        assertEquals(p, DRAWS.sliding / (double) N, K * Math.sqrt(p * (1 - p) / N), "sliding fraction");
+    }
+
+    @Test
+    void gravityAnglesAreCentredNormalsWithTheSpecsSd() {
         double g = SPEC.gravitySdDeg();
-        assertEquals(0, mean(roll), K * g / Math.sqrt(N), "mean roll");
-        assertEquals(0, mean(pitch), K * g / Math.sqrt(N), "mean pitch");
-        assertEquals(g, sd(roll), SD_REL_TOL * g, "SD of roll");
-        assertEquals(g, sd(pitch), SD_REL_TOL * g, "SD of pitch");
+        assertEquals(0, mean(DRAWS.roll), K * g / Math.sqrt(N), "mean roll");
+        assertEquals(0, mean(DRAWS.pitch), K * g / Math.sqrt(N), "mean pitch");
+        assertEquals(g, sd(DRAWS.roll), SD_REL_TOL * g, "SD of roll");
+        assertEquals(g, sd(DRAWS.pitch), SD_REL_TOL * g, "SD of pitch");
     }
 
     @Test
