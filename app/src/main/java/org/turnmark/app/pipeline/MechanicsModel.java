@@ -40,6 +40,22 @@ public final class MechanicsModel {
 
     /** Stop the reference iteration when no node is further than this from its prone position (mm): a third of a 1.5 mm voxel, a tenth of a 5 mm element. */
     public static final double REFERENCE_TOLERANCE_MM = 0.5;
+    /**
+     * Largest nodal mismatch accepted when 99 % of the nodes meet {@link #REFERENCE_TOLERANCE_MM}
+     * (mm). On the bundled phantoms the last few nodes to converge sit in strongly distorted
+     * elements at the edge of the chest-wall contact; by the time fewer than 1 % exceed the
+     * tolerance the RMS mismatch is ≈ 0.1 mm and the lesion region has long converged, while the
+     * strict rule would cost up to twice the forward solves for those few nodes.
+     */
+    public static final double REFERENCE_MAX_MISMATCH_MM = 2.0;
+    /**
+     * Forward solves allowed to a warm-started reference state (a prior sample started from the
+     * nominal solution). On the bundled phantom the samples that converge do so in 2–18 solves; one
+     * that has not converged by then has stalled (its mismatch stays at 1–3 mm), and letting it run to
+     * {@link #MAX_REFERENCE_ITERATIONS} cost up to 4 minutes for nothing. Such a sample is left out and
+     * counted in the plan's quality flags.
+     */
+    public static final int MAX_WARM_REFERENCE_ITERATIONS = 20;
     /** Fixed-point iterations before the reference state is declared not converged. */
     public static final int MAX_REFERENCE_ITERATIONS = 40;
 
@@ -161,7 +177,8 @@ public final class MechanicsModel {
      * @param mats     materials
      * @param bc       constraints
      * @param gProne   prone gravity (m/s², RAS)
-     * @param startX   initial guess of the reference nodes (null: the prone nodes)
+     * @param startX   initial guess of the reference nodes (null: the prone nodes); a warm start
+     *                 gets at most {@link #MAX_WARM_REFERENCE_ITERATIONS} forward solves
      * @param startU   warm start of the prone displacement from {@code startX} (null: none)
      * @param progress progress for this stage
      * @throws ReferenceNotConvergedException if the tolerance is not reached
@@ -172,15 +189,20 @@ public final class MechanicsModel {
         ReferenceStateResult rs;
         try {
             rs = ReferenceStateSolver.solve(proneMesh, mats, bc, gProne, cfg,
-                    new ReferenceStateConfig(REFERENCE_TOLERANCE_MM, MAX_REFERENCE_ITERATIONS, ANDERSON_DEPTH), progress,
-                    startX, startU);
+                    new ReferenceStateConfig(REFERENCE_TOLERANCE_MM,
+                            startX == null ? MAX_REFERENCE_ITERATIONS : MAX_WARM_REFERENCE_ITERATIONS, ANDERSON_DEPTH,
+                            REFERENCE_MAX_MISMATCH_MM), progress, startX, startU);
         } catch (SolverDivergedException e) {
             throw new ReferenceNotConvergedException("reference state: " + e.getMessage());
         }
-        // φ(X) of the last solve is within the tolerance of x_p; report X = x_p − u so the prone
-        // nodes are reproduced exactly by X + u.
+        // When every node of φ(X) is within the tolerance of x_p, report X = x_p − u so the prone
+        // nodes are reproduced exactly by X + u. When a few lag further (up to the bound), moving
+        // their reference nodes by that much could distort their (already strongly deformed)
+        // elements: keep the solved X, whose prone nodes X + u differ from x_p by the mismatch.
         double[] u = rs.uToLoaded();
-        return new Reference(subtract(proneMesh.xyzMm(), u), u, rs.iterations(), rs.maxMismatchMm(), rs.lastSolve(),
+        double[] x = rs.maxMismatchMm() <= REFERENCE_TOLERANCE_MM ? subtract(proneMesh.xyzMm(), u)
+                : rs.reference().xyzMm();
+        return new Reference(x, u, rs.iterations(), rs.maxMismatchMm(), rs.lastSolve(),
                 (System.nanoTime() - t0) / 1e9);
     }
 

@@ -3,9 +3,10 @@ package org.turnmark.app.pipeline;
 import java.util.List;
 import java.util.Locale;
 
+import org.turnmark.mechanics.solve.ReferenceStateConfig;
+import org.turnmark.mechanics.solve.SolveResult;
 import org.turnmark.registration.diffeo.RegistrationResult;
 import org.turnmark.registration.transform.JacobianStats;
-import org.turnmark.mechanics.solve.SolveResult;
 
 /**
  * Quality checks of a plan, each turned into a flag in plain words with its numbers and units.
@@ -27,10 +28,15 @@ final class QualityFlags {
 
     static void mechanics(List<PlanResult.QualityFlag> flags, MechanicsModel.Reference ref, SolveResult sup,
                           int failedSamples, int samples) {
+        String refText = ref.residualMm() <= MechanicsModel.REFERENCE_TOLERANCE_MM
+                ? f("reference state converged in %d iterations: every node within %.2f mm of its prone position",
+                        ref.iterations(), ref.residualMm())
+                : f("reference state converged in %d iterations: %.0f %% of the nodes within %.2f mm of their prone "
+                        + "positions, the furthest %.2f mm", ref.iterations(), ReferenceStateConfig.PERCENTILE,
+                        MechanicsModel.REFERENCE_TOLERANCE_MM, ref.residualMm());
         flags.add(new PlanResult.QualityFlag(PlanResult.QualityFlag.OK, "finite-element convergence",
-                f("reference state converged in %d iterations to %.2f mm; supine reload converged in %d load steps "
-                        + "(%d Newton iterations, relative residual %.1e)", ref.iterations(), ref.residualMm(),
-                        sup.loadSteps(), sup.newtonIterations(), sup.relativeResidual())));
+                f("%s; supine reload converged in %d load steps (%d Newton iterations, relative residual %.1e)",
+                        refText, sup.loadSteps(), sup.newtonIterations(), sup.relativeResidual())));
         double minDet = Math.min(ref.lastSolve().minDetF(), sup.minDetF());
         flags.add(new PlanResult.QualityFlag(minDet < LOW_DET_F ? PlanResult.QualityFlag.WARNING : PlanResult.QualityFlag.OK,
                 "element distortion", f("smallest det F %.3f (prone %.3f, supine %.3f); %s", minDet,

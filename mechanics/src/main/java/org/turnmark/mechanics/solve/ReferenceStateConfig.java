@@ -3,14 +3,28 @@ package org.turnmark.mechanics.solve;
 /**
  * Settings of {@link ReferenceStateSolver}.
  *
- * @param toleranceMm    stop when every node of the reloaded reference lies within this distance of
- *                       its loaded (observed) position, mm, &gt; 0 (default 0.05 mm, well below
- *                       image voxel sizes of ~0.5–1.5 mm)
+ * @param toleranceMm    stop when the nodes of the reloaded reference lie within this distance of
+ *                       their loaded (observed) positions, mm, &gt; 0 (default 0.05 mm, well below
+ *                       image voxel sizes of ~0.5–1.5 mm): every node with the strict rule
+ *                       ({@code maxMismatchMm == toleranceMm}), else
+ *                       {@value #PERCENTILE} % of them
+ * @param maxMismatchMm  no node may be further than this, mm, ≥ toleranceMm: equal to the tolerance
+ *                       for the strict rule; larger lets the iteration stop when only a few nodes
+ *                       (typically in strongly distorted elements at the edge of the chest-wall
+ *                       contact, which converge slowest) are still between the two
  * @param maxIterations  fixed-point iterations (forward solves) before giving up, ≥ 1 (default 40)
  * @param andersonDepth  number of previous iterates mixed by Anderson acceleration, ≥ 0; 0 gives
  *                       the plain fixed-point iteration (default 5)
  */
-public record ReferenceStateConfig(double toleranceMm, int maxIterations, int andersonDepth) {
+public record ReferenceStateConfig(double toleranceMm, int maxIterations, int andersonDepth, double maxMismatchMm) {
+
+    /** Share of nodes (percent) that must meet the tolerance when {@code maxMismatchMm} is larger. */
+    public static final double PERCENTILE = 99;
+
+    /** The strict rule: every node within {@code toleranceMm}. */
+    public ReferenceStateConfig(double toleranceMm, int maxIterations, int andersonDepth) {
+        this(toleranceMm, maxIterations, andersonDepth, toleranceMm);
+    }
 
     /** Validates all fields. */
     public ReferenceStateConfig {
@@ -19,6 +33,10 @@ public record ReferenceStateConfig(double toleranceMm, int maxIterations, int an
         }
         if (maxIterations < 1) {
             throw new IllegalArgumentException("maxIterations must be >= 1, got " + maxIterations);
+        }
+        if (!(maxMismatchMm >= toleranceMm) || !Double.isFinite(maxMismatchMm)) {
+            throw new IllegalArgumentException("maxMismatchMm must be finite and >= the tolerance " + toleranceMm
+                    + " mm, got " + maxMismatchMm);
         }
         if (andersonDepth < 0 || andersonDepth > 20) {
             throw new IllegalArgumentException("andersonDepth must be in [0, 20], got " + andersonDepth);

@@ -15,7 +15,9 @@ import org.turnmark.mechanics.mesh.HexMesh;
  * backward-displacement fixed-point iteration X ← X − (φ(X) − x) (REFERENCE §6; Bols et al.,
  * ESAIM M2AN 47, 2013) accelerated by Anderson mixing of depth m (Anderson, J ACM 12, 1965;
  * Walker &amp; Ni, SIAM J Numer Anal 49, 2011, type II). Each forward solve is warm-started from the
- * previous displacement. Stops when max_n |φ(X)_n − x_n| ≤ tolerance (mm). If an accelerated
+ * previous displacement. Stops when max_n |φ(X)_n − x_n| ≤ tolerance (mm), or, with a larger
+ * {@link ReferenceStateConfig#maxMismatchMm()}, when 99 % of the nodes are within the tolerance and
+ * all within that bound. If an accelerated
  * iterate cannot be solved (an element inverts), a damped plain fixed-point step is taken instead and the
  * history is cleared; the step is then relaxed (X ← X + β f with β halved, kept for later
  * steps). Constrained nodes keep their loaded positions along the constrained
@@ -35,6 +37,13 @@ public final class ReferenceStateSolver {
      * first steps while bounding the wasted solves.
      */
     static final double MIN_RELAXATION = 1.0 / 32;
+    /**
+     * An RMS mismatch this many times the best so far means the iteration is running away: it
+     * returns to the best iterate and continues with damped plain steps.
+     */
+    static final double RUNAWAY = 2;
+    /** Growth of the relaxation after a step that reduced the RMS mismatch (back to 1 at most). */
+    static final double RELAXATION_RECOVERY = 1.5;
 
     /**
      * Inexact forward solves: while the last mismatch exceeds this many times the tolerance (and
@@ -107,6 +116,11 @@ public final class ReferenceStateSolver {
         int linear = 0;
         double[] history = new double[rcfg.maxIterations()];
         double mismatch = Double.POSITIVE_INFINITY;
+        double rmsPrev = Double.POSITIVE_INFINITY;
+        double rmsBest = Double.POSITIVE_INFINITY;
+        double[] xBest = null;
+        double[] fBest = null;
+        double[] uBest = null;
         double relax = 1;
         for (int k = 0; k < rcfg.maxIterations(); k++) {
             prog.checkCancelled();
@@ -138,7 +152,7 @@ public final class ReferenceStateSolver {
             linear += r.linearIterations();
             u = r.u();
             mismatch = mismatch(xObs, x, u, f);
-            if (mismatch <= rcfg.toleranceMm() && !solver.configuredTolerances()) {
+            if (converged(f, mismatch, rcfg) && !solver.configuredTolerances()) {
                 // accept only a forward solve at the configured tolerances
                 solver.setTolerances(0, 0);
                 r = solver.solve(gravityMs2, Progress.NONE, u);
@@ -149,13 +163,40 @@ public final class ReferenceStateSolver {
             }
             history[k] = mismatch;
             prog.update("reference state", (k + 1.0) / rcfg.maxIterations());
-            if (mismatch <= rcfg.toleranceMm()) {
+            if (converged(f, mismatch, rcfg)) {
                 return new ReferenceStateResult(loaded.withNodes(x.clone()), u.clone(), k + 1, mismatch,
                         Arrays.copyOf(history, k + 1), newton, linear, (System.nanoTime() - t0) / 1_000_000,
                         "fixed-point (Anderson " + m + ")", r);
             }
+            // Safeguard: Anderson mixing can go unstable on a strongly nonlinear map (the mismatch
+            // then grows step after step). When the RMS mismatch grows, restart the mixing from the
+            // current iterate with a halved relaxation (restarted Anderson; Walker & Ni 2011, §5).
+            // If it has grown to RUNAWAY times the best so far, go back to the best iterate.
+            double rms = VecOps.norm(f) / Math.sqrt(n / 3.0);
+            if (rms < rmsBest) {
+                rmsBest = rms;
+                xBest = x.clone();
+                fBest = f.clone();
+                uBest = u.clone();
+            }
+            boolean restart = rms > rmsPrev;
+            if (rms > RUNAWAY * rmsBest) {
+                System.arraycopy(xBest, 0, x, 0, n);
+                System.arraycopy(fBest, 0, f, 0, n);
+                u = uBest.clone();
+                rms = rmsBest;
+            }
+            rmsPrev = rms;
+            if (restart) {
+                hist = 0;
+                relax = Math.max(MIN_RELAXATION, 0.5 * relax);
+            } else {
+                // a step that reduced the mismatch lets the relaxation recover, so that a few hard
+                // steps early on do not damp every later one (or exhaust the halvings)
+                relax = Math.min(1, RELAXATION_RECOVERY * relax);
+            }
             // Anderson type II: X_{k+1} = X_k + f_k − (ΔX + ΔF) γ, γ = argmin ‖f_k − ΔF γ‖
-            if (m > 0 && xPrev != null) {
+            if (m > 0 && xPrev != null && !restart) {
                 double[] ddx = new double[n];
                 double[] ddf = new double[n];
                 for (int i = 0; i < n; i++) {
@@ -190,6 +231,28 @@ public final class ReferenceStateSolver {
         throw new SolverDivergedException(String.format("reference-state iteration did not reach %.3g mm in %d"
                 + " forward solves (last max nodal mismatch %.4g mm)", rcfg.toleranceMm(), rcfg.maxIterations(),
                 mismatch), Double.NaN, 1);
+    }
+
+    /**
+     * The stopping rule: the max nodal mismatch within {@code maxMismatchMm} and, when that exceeds
+     * the tolerance, the {@link ReferenceStateConfig#PERCENTILE}-th percentile within the tolerance.
+     */
+    static boolean converged(double[] f, double maxMismatch, ReferenceStateConfig rcfg) {
+        if (maxMismatch <= rcfg.toleranceMm()) {
+            return true;
+        }
+        if (maxMismatch > rcfg.maxMismatchMm()) {
+            return false;
+        }
+        int nodes = f.length / 3;
+        int above = 0;
+        for (int i = 0; i < f.length; i += 3) {
+            double m = Math.sqrt(f[i] * f[i] + f[i + 1] * f[i + 1] + f[i + 2] * f[i + 2]);
+            if (m > rcfg.toleranceMm()) {
+                above++;
+            }
+        }
+        return above <= nodes * (1 - ReferenceStateConfig.PERCENTILE / 100);
     }
 
     /** f = x_obs − (X + u); returns max_n |f_n| (mm). */

@@ -100,6 +100,7 @@ class BadInputTest {
         assertThrows(IllegalArgumentException.class, () -> SolverConfig.defaults().withLoadSteps(0));
         assertThrows(IllegalArgumentException.class, () -> SolverConfig.defaults().withTolerances(0, 1e-10));
         assertThrows(IllegalArgumentException.class, () -> new ReferenceStateConfig(-1, 10, 3));
+        assertThrows(IllegalArgumentException.class, () -> new ReferenceStateConfig(0.5, 10, 3, 0.4));
         assertThrows(IllegalArgumentException.class, () -> new NodeConstraints(3).slide(0, 0, 0, 0));
     }
 
