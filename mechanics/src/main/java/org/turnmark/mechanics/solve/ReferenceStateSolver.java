@@ -53,6 +53,12 @@ public final class ReferenceStateSolver {
      * at the configured tolerances before it is accepted.
      */
     static final double LOOSE_FACTOR = 10;
+    /**
+     * ... or this many mm, whichever is smaller: a loose solve's displacement error (≲ 0.01 mm)
+     * stays far below a mismatch of 0.5 mm, so a coarse tolerance (e.g. the planner's 0.5 mm) does
+     * not force tight solves through the whole iteration.
+     */
+    static final double LOOSE_MAX_MM = 0.5;
     /** Relative force residual of a loose forward solve. */
     static final double LOOSE_RESIDUAL = 1e-4;
     /** Relative energy norm of a loose forward solve. */
@@ -125,7 +131,7 @@ public final class ReferenceStateSolver {
         for (int k = 0; k < rcfg.maxIterations(); k++) {
             prog.checkCancelled();
             SolveResult r;
-            boolean loose = k == 0 || history[k - 1] > LOOSE_FACTOR * rcfg.toleranceMm();
+            boolean loose = k == 0 || history[k - 1] > Math.min(LOOSE_FACTOR * rcfg.toleranceMm(), LOOSE_MAX_MM);
             if (loose) {
                 solver.setTolerances(LOOSE_RESIDUAL, LOOSE_ENERGY);
             } else {
