@@ -45,6 +45,22 @@ public record CaseFile(
     }
 
     /**
+     * This case with {@code model.element_size_mm} replaced (other model options kept), e.g. a
+     * coarser model for repeated runs.
+     *
+     * @param elementSizeMm element edge, mm, or null for the case's own value
+     */
+    public CaseFile withElementSizeMm(Double elementSizeMm) {
+        if (elementSizeMm == null) {
+            return this;
+        }
+        ModelOptions m2 = new ModelOptions(elementSizeMm, model == null ? null : model.chestWall(),
+                model == null ? null : model.gravityMS2());
+        return new CaseFile(schemaVersion, caseId, description, proneImage, supineImage, labels, laterality, lesions,
+                nipples, chestWallPlaneRasMm, m2, priors, uncertainty, output, truth);
+    }
+
+    /**
      * A lesion mark on the prone image: exactly one of {@code position_ras_mm} or
      * {@code position_voxel}; {@code radius_mm} or {@code label} let the pipeline refine the
      * centroid on the image; {@code supine_position_ras_mm} is an optional point marked on the supine

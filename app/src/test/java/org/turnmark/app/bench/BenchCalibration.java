@@ -125,7 +125,7 @@ public final class BenchCalibration {
             Path planDir = work.resolve(caseDir.getFileName() + "-plan");
             try {
                 double tPhantom = phantom(s, seed, caseDir);
-                CaseFile c = withElementSize(new CaseFileReader().read(caseDir.resolve("case.json")), s.planElementMm());
+                CaseFile c = new CaseFileReader().read(caseDir.resolve("case.json")).withElementSizeMm(s.planElementMm());
                 long t0 = System.nanoTime();
                 Planner.Outcome out = new Planner().run(c, new Planner.Options(s.samples()),
                         new StageLog("seed " + seed));
@@ -182,19 +182,6 @@ public final class BenchCalibration {
                 s.truth().key(), id);
         PhantomWriter.write(c, dir, id, command, true);
         return (System.nanoTime() - t0) * 1e-9;
-    }
-
-    /** The case with {@code model.element_size_mm} replaced, or unchanged when {@code h} is null. */
-    static CaseFile withElementSize(CaseFile c, Double h) {
-        if (h == null) {
-            return c;
-        }
-        CaseFile.ModelOptions m = c.model();
-        CaseFile.ModelOptions m2 = new CaseFile.ModelOptions(h, m == null ? null : m.chestWall(),
-                m == null ? null : m.gravityMS2());
-        return new CaseFile(c.schemaVersion(), c.caseId(), c.description(), c.proneImage(), c.supineImage(),
-                c.labels(), c.laterality(), c.lesions(), c.nipples(), c.chestWallPlaneRasMm(), m2, c.priors(),
-                c.uncertainty(), c.output(), c.truth());
     }
 
     /** Rows for every lesion × supine-frame method of one plan, against the case's inline truth. */
