@@ -56,6 +56,12 @@ public final class MechanicsModel {
      * counted in the plan's quality flags.
      */
     public static final int MAX_WARM_REFERENCE_ITERATIONS = 20;
+    /**
+     * A warm-started sample whose best RMS mismatch has not fallen by 10 % in this many forward
+     * solves has stalled and is left out at once (its remaining solves would be wasted: on the
+     * bundled phantom such a sample used 20 solves and 3 minutes, then failed anyway).
+     */
+    public static final int SAMPLE_STALL_WINDOW = 6;
     /** Fixed-point iterations before the reference state is declared not converged. */
     public static final int MAX_REFERENCE_ITERATIONS = 40;
 
@@ -191,7 +197,7 @@ public final class MechanicsModel {
             rs = ReferenceStateSolver.solve(proneMesh, mats, bc, gProne, cfg,
                     new ReferenceStateConfig(REFERENCE_TOLERANCE_MM,
                             startX == null ? MAX_REFERENCE_ITERATIONS : MAX_WARM_REFERENCE_ITERATIONS, ANDERSON_DEPTH,
-                            REFERENCE_MAX_MISMATCH_MM), progress, startX, startU);
+                            REFERENCE_MAX_MISMATCH_MM, startX == null ? 0 : SAMPLE_STALL_WINDOW), progress, startX, startU);
         } catch (SolverDivergedException e) {
             throw new ReferenceNotConvergedException("reference state: " + e.getMessage());
         }

@@ -12,18 +12,29 @@ package org.turnmark.mechanics.solve;
  *                       for the strict rule; larger lets the iteration stop when only a few nodes
  *                       (typically in strongly distorted elements at the edge of the chest-wall
  *                       contact, which converge slowest) are still between the two
+ * @param stallWindow    give up when the best RMS mismatch has not fallen by
+ *                       {@value #STALL_PROGRESS} (relative) within this many forward solves; 0 never
+ *                       (the iteration then runs to {@code maxIterations})
  * @param maxIterations  fixed-point iterations (forward solves) before giving up, ≥ 1 (default 40)
  * @param andersonDepth  number of previous iterates mixed by Anderson acceleration, ≥ 0; 0 gives
  *                       the plain fixed-point iteration (default 5)
  */
-public record ReferenceStateConfig(double toleranceMm, int maxIterations, int andersonDepth, double maxMismatchMm) {
+public record ReferenceStateConfig(double toleranceMm, int maxIterations, int andersonDepth, double maxMismatchMm,
+                                   int stallWindow) {
 
     /** Share of nodes (percent) that must meet the tolerance when {@code maxMismatchMm} is larger. */
     public static final double PERCENTILE = 99;
+    /** Relative fall of the best RMS mismatch that counts as progress for the stall test. */
+    public static final double STALL_PROGRESS = 0.1;
 
-    /** The strict rule: every node within {@code toleranceMm}. */
+    /** The strict rule: every node within {@code toleranceMm}; no stall test. */
     public ReferenceStateConfig(double toleranceMm, int maxIterations, int andersonDepth) {
-        this(toleranceMm, maxIterations, andersonDepth, toleranceMm);
+        this(toleranceMm, maxIterations, andersonDepth, toleranceMm, 0);
+    }
+
+    /** No stall test. */
+    public ReferenceStateConfig(double toleranceMm, int maxIterations, int andersonDepth, double maxMismatchMm) {
+        this(toleranceMm, maxIterations, andersonDepth, maxMismatchMm, 0);
     }
 
     /** Validates all fields. */
@@ -37,6 +48,9 @@ public record ReferenceStateConfig(double toleranceMm, int maxIterations, int an
         if (!(maxMismatchMm >= toleranceMm) || !Double.isFinite(maxMismatchMm)) {
             throw new IllegalArgumentException("maxMismatchMm must be finite and >= the tolerance " + toleranceMm
                     + " mm, got " + maxMismatchMm);
+        }
+        if (stallWindow < 0) {
+            throw new IllegalArgumentException("stallWindow must be >= 0, got " + stallWindow);
         }
         if (andersonDepth < 0 || andersonDepth > 20) {
             throw new IllegalArgumentException("andersonDepth must be in [0, 20], got " + andersonDepth);

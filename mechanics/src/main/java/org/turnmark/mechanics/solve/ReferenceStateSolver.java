@@ -121,6 +121,7 @@ public final class ReferenceStateSolver {
         int newton = 0;
         int linear = 0;
         double[] history = new double[rcfg.maxIterations()];
+        double[] bestHistory = new double[rcfg.maxIterations()];
         double mismatch = Double.POSITIVE_INFINITY;
         double rmsPrev = Double.POSITIVE_INFINITY;
         double rmsBest = Double.POSITIVE_INFINITY;
@@ -184,6 +185,13 @@ public final class ReferenceStateSolver {
                 xBest = x.clone();
                 fBest = f.clone();
                 uBest = u.clone();
+            }
+            bestHistory[k] = rmsBest;
+            int w = rcfg.stallWindow();
+            if (w > 0 && k >= w && rmsBest > (1 - ReferenceStateConfig.STALL_PROGRESS) * bestHistory[k - w]) {
+                throw new SolverDivergedException(String.format("reference-state iteration stalled: the RMS nodal "
+                        + "mismatch (best %.4g mm, max %.4g mm) fell by less than %.0f %% in the last %d forward solves",
+                        rmsBest, mismatch, 100 * ReferenceStateConfig.STALL_PROGRESS, w), Double.NaN, 1);
             }
             boolean restart = rms > rmsPrev;
             if (rms > RUNAWAY * rmsBest) {

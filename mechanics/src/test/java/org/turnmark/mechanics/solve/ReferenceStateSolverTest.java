@@ -147,4 +147,16 @@ class ReferenceStateSolverTest {
         f[1] = 2.5; // one node beyond the bound
         assertTrue(!ReferenceStateSolver.converged(f, Math.hypot(0.3, 2.5), lenient));
     }
+
+    /**
+     * An unreachable tolerance (far below the forward solves' round-off) makes the iteration stall:
+     * with a stall window it stops with a message saying so instead of running to the limit.
+     */
+    @Test
+    void aStalledIterationStopsEarlyWithAClearMessage() {
+        ReferenceStateConfig rcfg = new ReferenceStateConfig(1e-12, 40, 5, 1e-12, 3);
+        SolverDivergedException e = org.junit.jupiter.api.Assertions.assertThrows(SolverDivergedException.class,
+                () -> ReferenceStateSolver.solve(prone, SOFT, bc, PRONE, SolverConfig.defaults(), rcfg, Progress.NONE));
+        assertTrue(e.getMessage().contains("stalled"), e.getMessage());
+    }
 }
