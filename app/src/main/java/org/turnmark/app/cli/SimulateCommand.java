@@ -344,6 +344,9 @@ final class SimulateCommand implements Callable<Integer> {
         double[] s = new double[9];
         int[] hex = reference.hex();
         double[] x = reference.xyzMm();
+        double[] j0 = new double[9];
+        double[] jx = new double[9];
+        double[] inv = new double[9];
         for (int e = 0; e < ne; e++) {
             for (int a = 0; a < 8; a++) {
                 int p = 3 * hex[8 * e + a];
@@ -352,7 +355,7 @@ final class SimulateCommand implements Callable<Integer> {
                     ue[3 * a + c] = u[p + c];
                 }
             }
-            det[e] = HexKernel.centreDeformationGradient(xe, ue, f);
+            det[e] = HexKernel.centreDeformationGradient(xe, ue, f, j0, jx, inv);
             NeoHookeanMaterial m = mats.get(reference.label()[e]);
             m.cauchyStress(f, s);
             double tr = (s[0] + s[4] + s[8]) / 3;

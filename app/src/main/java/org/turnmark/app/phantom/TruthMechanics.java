@@ -196,19 +196,8 @@ public final class TruthMechanics {
             sliding = draw.sliding();
             bc = ChestWallConstraints.of(mesh, surface, wall, sliding);
         } else {
-            bc = new NodeConstraints(mesh.nodeCount());
-            int[] wn = wall.nodes();
-            double[] normals = wall.normals();
-            for (int i = 0; i < wn.length; i++) {
-                double nx = normals[3 * i];
-                double ny = normals[3 * i + 1];
-                double nz = normals[3 * i + 2];
-                if (nx == 0 && ny == 0 && nz == 0) {
-                    bc.fix(wn[i]);
-                } else {
-                    bc.slide(wn[i], nx, ny, nz);
-                }
-            }
+            // every contact node slides on its normal (no fixed rim); nodes without a normal are fixed
+            bc = ChestWallConstraints.of(mesh.nodeCount(), wall, new boolean[mesh.nodeCount()], true);
             // Truth materials: log-normal per tissue about the defaults, another ν, scaled densities.
             densityScale = 0.97 + 0.06 * rng.nextDouble();
             mats = MaterialTable.empty();

@@ -279,9 +279,8 @@ public final class HexKernel {
 
     /**
      * Deformation gradient at the element centre (ξ = 0) from reference node coordinates and nodal
-     * displacements: F = (∂x/∂ξ)(∂X/∂ξ)⁻¹ with x = X + u. Allocation-free: the 3×3 algebra is unrolled
-     * into locals in the operation order of {@link Mat3#inverse} and {@link Mat3#multiply}, so the
-     * result equals the array-based evaluation bit for bit. Stateless, thread safe.
+     * displacements: F = (∂x/∂ξ)(∂X/∂ξ)⁻¹ with x = X + u. Allocates three 3×3 workspaces; loops over
+     * many elements should pass their own (the six-argument form).
      *
      * @param xe reference coordinates of the 8 nodes (24 values, mm), not modified
      * @param ue displacements of the 8 nodes (24 values, mm), not modified
@@ -289,84 +288,35 @@ public final class HexKernel {
      * @return det F
      */
     public static double centreDeformationGradient(double[] xe, double[] ue, double[] f) {
-        final double[] dxi = CENTRE_DN_DXI;
-        // J0 = ∂X/∂ξ (rows: X component, columns: ξ direction) and Jx = ∂x/∂ξ, summed over nodes in order.
-        double a00 = 0;
-        double a01 = 0;
-        double a02 = 0;
-        double a10 = 0;
-        double a11 = 0;
-        double a12 = 0;
-        double a20 = 0;
-        double a21 = 0;
-        double a22 = 0;
-        double b00 = 0;
-        double b01 = 0;
-        double b02 = 0;
-        double b10 = 0;
-        double b11 = 0;
-        double b12 = 0;
-        double b20 = 0;
-        double b21 = 0;
-        double b22 = 0;
+        return centreDeformationGradient(xe, ue, f, new double[9], new double[9], new double[9]);
+    }
+
+    /**
+     * As {@link #centreDeformationGradient(double[], double[], double[])} with the caller's 3×3
+     * workspaces (9 values each, overwritten, distinct), so a loop over elements allocates nothing.
+     *
+     * @param j0  work: ∂X/∂ξ
+     * @param jx  work: ∂x/∂ξ
+     * @param inv work: (∂X/∂ξ)⁻¹
+     */
+    public static double centreDeformationGradient(double[] xe, double[] ue, double[] f, double[] j0, double[] jx,
+                                                   double[] inv) {
+        double[] dxi = CENTRE_DN_DXI;
+        java.util.Arrays.fill(j0, 0);
+        java.util.Arrays.fill(jx, 0);
         for (int a = 0; a < 8; a++) {
-            int o = 3 * a;
-            double d0 = dxi[o];
-            double d1 = dxi[o + 1];
-            double d2 = dxi[o + 2];
-            double r0 = xe[o];
-            double r1 = xe[o + 1];
-            double r2 = xe[o + 2];
-            double c0 = r0 + ue[o];
-            double c1 = r1 + ue[o + 1];
-            double c2 = r2 + ue[o + 2];
-            a00 += r0 * d0;
-            a01 += r0 * d1;
-            a02 += r0 * d2;
-            a10 += r1 * d0;
-            a11 += r1 * d1;
-            a12 += r1 * d2;
-            a20 += r2 * d0;
-            a21 += r2 * d1;
-            a22 += r2 * d2;
-            b00 += c0 * d0;
-            b01 += c0 * d1;
-            b02 += c0 * d2;
-            b10 += c1 * d0;
-            b11 += c1 * d1;
-            b12 += c1 * d2;
-            b20 += c2 * d0;
-            b21 += c2 * d1;
-            b22 += c2 * d2;
+            for (int i = 0; i < 3; i++) {
+                for (int al = 0; al < 3; al++) {
+                    j0[3 * i + al] += xe[3 * a + i] * dxi[3 * a + al];
+                    jx[3 * i + al] += (xe[3 * a + i] + ue[3 * a + i]) * dxi[3 * a + al];
+                }
+            }
         }
-        // J0⁻¹ by cofactors (as Mat3.inverse).
-        double c00 = a11 * a22 - a12 * a21;
-        double c01 = a12 * a20 - a10 * a22;
-        double c02 = a10 * a21 - a11 * a20;
-        double det0 = a00 * c00 + a01 * c01 + a02 * c02;
+        double det0 = Mat3.inverse(j0, inv);
         if (!(det0 > 0)) {
             throw new InvertedElementException(-1, det0, "reference element is degenerate");
         }
-        double id = 1 / det0;
-        double i00 = c00 * id;
-        double i10 = c01 * id;
-        double i20 = c02 * id;
-        double i01 = (a02 * a21 - a01 * a22) * id;
-        double i11 = (a00 * a22 - a02 * a20) * id;
-        double i21 = (a01 * a20 - a00 * a21) * id;
-        double i02 = (a01 * a12 - a02 * a11) * id;
-        double i12 = (a02 * a10 - a00 * a12) * id;
-        double i22 = (a00 * a11 - a01 * a10) * id;
-        // F = Jx · J0⁻¹ (as Mat3.multiply).
-        f[0] = b00 * i00 + b01 * i10 + b02 * i20;
-        f[1] = b00 * i01 + b01 * i11 + b02 * i21;
-        f[2] = b00 * i02 + b01 * i12 + b02 * i22;
-        f[3] = b10 * i00 + b11 * i10 + b12 * i20;
-        f[4] = b10 * i01 + b11 * i11 + b12 * i21;
-        f[5] = b10 * i02 + b11 * i12 + b12 * i22;
-        f[6] = b20 * i00 + b21 * i10 + b22 * i20;
-        f[7] = b20 * i01 + b21 * i11 + b22 * i21;
-        f[8] = b20 * i02 + b21 * i12 + b22 * i22;
+        Mat3.multiply(jx, inv, f);
         return Mat3.det(f);
     }
 }
