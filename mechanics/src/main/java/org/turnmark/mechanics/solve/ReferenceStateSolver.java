@@ -125,9 +125,9 @@ public final class ReferenceStateSolver {
         double mismatch = Double.POSITIVE_INFINITY;
         double rmsPrev = Double.POSITIVE_INFINITY;
         double rmsBest = Double.POSITIVE_INFINITY;
-        double[] xBest = null;
-        double[] fBest = null;
-        double[] uBest = null;
+        final double[] xBest = new double[n];
+        final double[] fBest = new double[n];
+        final double[] uBest = new double[n];
         double relax = 1;
         for (int k = 0; k < rcfg.maxIterations(); k++) {
             prog.checkCancelled();
@@ -182,9 +182,9 @@ public final class ReferenceStateSolver {
             double rms = VecOps.norm(f) / Math.sqrt(n / 3.0);
             if (rms < rmsBest) {
                 rmsBest = rms;
-                xBest = x.clone();
-                fBest = f.clone();
-                uBest = u.clone();
+                System.arraycopy(x, 0, xBest, 0, n);
+                System.arraycopy(f, 0, fBest, 0, n);
+                System.arraycopy(u, 0, uBest, 0, n);
             }
             bestHistory[k] = rmsBest;
             int w = rcfg.stallWindow();
