@@ -32,7 +32,11 @@ import org.turnmark.geom.Parallel;
  * </ul>
  * {@link #refresh} keeps the hierarchy and only updates the finest-level smoother after the
  * matrix values change (within a Newton increment); the V-cycle remains SPD, only slightly less
- * effective. Not thread safe.
+ * effective. A diagonal shift σI added to the matrix (Levenberg–Marquardt regularisation of an
+ * indefinite tangent) reaches the coarse levels exactly without new Galerkin products: with the
+ * prolongators fixed, Pᵀ(A + σI)P = PᵀAP + σ PᵀP, so each coarse level keeps M = PᵀM_fP (M = I on
+ * the finest level, computed once per hierarchy when a shift first changes) and adds the change of
+ * σ times M. Not thread safe.
  */
 final class AggregationMultigrid implements Preconditioner {
 
@@ -55,12 +59,23 @@ final class AggregationMultigrid implements Preconditioner {
     /** Reused single-precision buffer of the finest operator. */
     private float[] fineFloat;
     private int coarseN;
+    /** True once {@link #setup} completed (a failed setup leaves no usable hierarchy). */
+    private boolean ready;
+    /** Diagonal shift σ included in the coarse operators: they are Pᵀ(A₀ + σI)P. */
+    private double coarseSigma;
+    /** Whether the coarse levels carry their shift matrices M. */
+    private boolean shiftMatrices;
 
     /** One level: operator, smoother, and the prolongator from the next coarser level. */
     private static final class Level {
         BlockCsr a;
         /** Single-precision copy of the finest operator's values for smoothing (null on coarse levels). */
         float[] af;
+        /**
+         * Coarse levels: values of M = Pᵀ M_f P on this level's pattern (M_f = I on the finest level),
+         * the change of this operator per unit of diagonal shift; null until a shift changes.
+         */
+        double[] m;
         /** Last power-iteration vector (dominant eigenvector estimate of D⁻¹A). */
         double[] eig;
         final BlockJacobi dinv = new BlockJacobi();
@@ -109,6 +124,14 @@ final class AggregationMultigrid implements Preconditioner {
 
     @Override
     public void setup(BlockCsr a) {
+        setup(a, 0);
+    }
+
+    /** Builds the hierarchy for a matrix that includes the diagonal shift {@code sigma}·I. */
+    private void setup(BlockCsr a, double sigma) {
+        ready = false;
+        shiftMatrices = false;
+        coarseSigma = sigma;
         levels.clear();
         Level l = new Level();
         l.a = a;
@@ -144,7 +167,7 @@ final class AggregationMultigrid implements Preconditioner {
             Level c = new Level();
             c.pos = centroids(l.pos, agg, nAgg);
             buildProlongator(l, agg, nAgg, c.pos);
-            c.a = galerkin(l);
+            c.a = galerkin(l, l.a);
             regularize(c.a);
             l = c;
         }
@@ -155,28 +178,94 @@ final class AggregationMultigrid implements Preconditioner {
         }
         coarseFactor = dense(last.a);
         DenseOps.cholesky(coarseFactor, coarseN);
+        ready = true;
     }
 
     @Override
     public void refresh(BlockCsr a) {
-        if (levels.isEmpty() || levels.get(0).a != a) {
-            setup(a);
+        refresh(a, coarseSigma);
+    }
+
+    @Override
+    public void refresh(BlockCsr a, double sigma) {
+        if (!ready || levels.isEmpty() || levels.get(0).a != a || levels.size() == 1) {
+            setup(a, sigma);
             return;
         }
         Level l = levels.get(0);
-        if (levels.size() == 1) {
-            setup(a);
-            return;
-        }
         if (l.af != null) {
             l.af = a.valuesAsFloat(l.af);
         }
         l.dinv.setup(a);
         l.lmax = refreshLambdaMax(l);
+        if (sigma != coarseSigma) {
+            shiftCoarse(sigma - coarseSigma);
+            coarseSigma = sigma;
+        }
+    }
+
+    /** Adds ds·M to every coarse operator and refreshes its smoother and the coarse factor. */
+    private void shiftCoarse(double ds) {
+        ready = false;
+        if (!shiftMatrices) {
+            buildShiftMatrices();
+        }
+        for (int li = 1; li < levels.size(); li++) {
+            Level l = levels.get(li);
+            double[] v = l.a.val;
+            double[] m = l.m;
+            for (int i = 0; i < v.length; i++) {
+                v[i] += ds * m[i];
+            }
+            l.dinv.setup(l.a);
+            l.lmax = refreshLambdaMax(l);
+        }
+        Level last = levels.get(levels.size() - 1);
+        coarseFactor = dense(last.a);
+        DenseOps.cholesky(coarseFactor, coarseN);
+        ready = true;
+    }
+
+    /**
+     * M on each coarse level: PᵀP below the finest level, then PᵀMP level by level (the Galerkin
+     * product of the level above's M, whose pattern is that level's operator pattern, so the result
+     * lands on this level's pattern position by position).
+     */
+    private void buildShiftMatrices() {
+        Level fine = levels.get(0);
+        BlockCsr id = new BlockCsr(fine.a.rows, fine.a.b, fine.a.rowPtr, fine.a.col);
+        int bb = fine.a.b * fine.a.b;
+        for (int r = 0; r < id.rows; r++) {
+            for (int i = 0; i < fine.a.b; i++) {
+                id.val[bb * id.diag[r] + (fine.a.b + 1) * i] = 1;
+            }
+        }
+        BlockCsr above = id;
+        for (int li = 0; li + 1 < levels.size(); li++) {
+            Level l = levels.get(li);
+            BlockCsr mc = galerkin(l, above);
+            Level c = levels.get(li + 1);
+            if (mc.val.length != c.a.val.length) {
+                throw new IllegalStateException("shift matrix pattern differs from the coarse operator's");
+            }
+            c.m = mc.val;
+            above = mc;
+        }
+        shiftMatrices = true;
     }
 
     int levelCount() {
         return levels.size();
+    }
+
+    /** Operator of level li (0 = finest); for tests. */
+    BlockCsr operator(int li) {
+        return levels.get(li).a;
+    }
+
+    /** x += P xc with the prolongator from level li + 1 to level li; for tests. */
+    void prolongateAdd(int li, double[] xc, double[] x) {
+        prolongAdd(levels.get(li), xc, x);
     }
 
     /** Level sizes (block rows, block size, stored blocks), for diagnostics. */
@@ -501,9 +590,8 @@ final class AggregationMultigrid implements Preconditioner {
         }
     }
 
-    /** A_c = Pᵀ (A P). */
-    private static BlockCsr galerkin(Level l) {
-        BlockCsr a = l.a;
+    /** A_c = Pᵀ (A P) with the prolongator of level l; the pattern depends only on a's pattern and P. */
+    private static BlockCsr galerkin(Level l, BlockCsr a) {
         final int bf = a.b;
         final int bc = l.bc;
         final int fb = bf * bc;

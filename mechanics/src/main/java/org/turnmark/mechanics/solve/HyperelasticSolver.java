@@ -425,19 +425,21 @@ public final class HyperelasticSolver {
      */
     private boolean linearSolve(Step st, boolean firstIteration, double eta) {
         boolean fullSetup = firstIteration;
-        double applied = 0;
         double tau = shift;
         boolean escalated = false;
+        double meanDiag = tau > 0 ? meanDiagonal(sys.k) : 0;   // of the unshifted tangent
+        double applied = 0;                                     // absolute shift now in sys.k
         while (true) {
             try {
                 if (tau > 0) {
-                    addDiagonal(sys.k, (tau - applied) * meanDiagonal(sys.k));
-                    applied = tau;
+                    addDiagonal(sys.k, tau * meanDiag - applied);
+                    applied = tau * meanDiag;
                 }
                 if (fullSetup) {
                     precond.setup(sys.k);
                 } else {
-                    precond.refresh(sys.k);
+                    // a changed shift reaches the multigrid's coarse operators without a new setup
+                    precond.refresh(sys.k, applied);
                 }
                 linearIterations += pcg.solve(sys.k, precond, st.rhs, st.du, eta, cfg.maxLinearIterations());
                 // the multigrid coarse correction is not confined to the admissible subspace, so the
@@ -459,10 +461,12 @@ public final class HyperelasticSolver {
                 }
                 // start from the shift that last cured an indefinite tangent (the same body in a
                 // similar state usually needs a similar shift), else from the smallest
+                if (tau == 0) {
+                    meanDiag = meanDiagonal(sys.k);
+                }
                 tau = tau == 0 ? Math.max(MIN_SHIFT, shiftHint) : tau * SHIFT_GROWTH;
                 escalated = true;
-                // a shifted matrix has new coarse operators: rebuild the hierarchy
-                fullSetup = true;
+                fullSetup = false;
             }
         }
     }

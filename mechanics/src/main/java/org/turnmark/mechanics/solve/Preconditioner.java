@@ -14,6 +14,14 @@ interface Preconditioner {
         setup(a);
     }
 
+    /**
+     * As {@link #refresh}, after the caller added {@code sigma}·I to the matrix (a diagonal shift,
+     * absolute, in the matrix's units; 0 for none) — the default redoes {@link #setup}.
+     */
+    default void refresh(BlockCsr a, double sigma) {
+        setup(a);
+    }
+
     /** z = M r; z must not alias r. */
     void apply(double[] r, double[] z);
 }

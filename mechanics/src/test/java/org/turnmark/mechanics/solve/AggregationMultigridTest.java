@@ -1,0 +1,101 @@
+package org.turnmark.mechanics.solve;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.util.Random;
+
+import org.junit.jupiter.api.Test;
+import org.turnmark.mechanics.bench.VoxelBreast;
+import org.turnmark.mechanics.element.HexFormulation;
+import org.turnmark.mechanics.material.MaterialTable;
+import org.turnmark.mechanics.mesh.HexMesh;
+
+class AggregationMultigridTest {
+
+    /**
+     * Coarse operators after a shifted refresh are the Galerkin products of the shifted matrix:
+     * zᵀ A_c y = (P z)ᵀ (A + σI) (P y) for random coarse vectors, on every coarse level (P the
+     * product of the prolongators down to the finest level). Both sides add the same terms in a
+     * different order, so they agree to round-off: 1e−10 of |P z|·max|a_ij|·|P y|.
+     */
+    @Test
+    void shiftedRefreshGivesGalerkinProductOfShiftedMatrix() {
+        HexMesh mesh = VoxelBreast.halfEllipsoid(40, 30, 35, 3, true);
+        FeSystem sys = new FeSystem(mesh, MaterialTable.DEFAULTS, HexFormulation.MEAN_DILATATION);
+        int n = 3 * mesh.nodeCount();
+        double[] u = new double[n];
+        double[] f = new double[n];
+        sys.assemble(u, f, true, new double[1]);
+        new Projector(VoxelBreast.fixedChestWall(mesh)).projectMatrix(sys.k);
+        AggregationMultigrid mg = new AggregationMultigrid(mesh.xyzMm());
+        mg.setup(sys.k);
+        assertTrue(mg.levelCount() >= 3, "the test needs two coarse levels, has " + mg.levelCount());
+        double meanDiag = 0;
+        for (int r = 0; r < sys.k.rows; r++) {
+            for (int i = 0; i < 3; i++) {
+                meanDiag += sys.k.val[9 * sys.k.diag[r] + 4 * i];
+            }
+        }
+        meanDiag /= n;
+        Random rnd = new Random(5);
+        double applied = 0;
+        for (double tau : new double[] {0.1, 1e-3, 0}) {
+            // as the solver does: shift the matrix the hierarchy was built for in place
+            double sigma = tau * meanDiag;
+            addDiagonal(sys.k, sigma - applied);
+            applied = sigma;
+            mg.refresh(sys.k, sigma);
+            for (int li = 1; li < mg.levelCount(); li++) {
+                BlockCsr ac = mg.operator(li);
+                double[] y = random(rnd, ac.size());
+                double[] z = random(rnd, ac.size());
+                double[] acy = new double[ac.size()];
+                ac.multiply(y, acy);
+                double coarse = VecOps.dot(z, acy);
+                double[] py = toFinest(mg, li, y, n);
+                double[] pz = toFinest(mg, li, z, n);
+                double[] apy = new double[n];
+                sys.k.multiply(py, apy);
+                double fine = VecOps.dot(pz, apy);
+                double scale = VecOps.norm(pz) * VecOps.norm(py) * maxAbs(sys.k.val);
+                assertEquals(fine, coarse, 1e-10 * scale, "level " + li + ", tau " + tau);
+            }
+        }
+    }
+
+    private static void addDiagonal(BlockCsr a, double c) {
+        for (int r = 0; r < a.rows; r++) {
+            for (int i = 0; i < 3; i++) {
+                a.val[9 * a.diag[r] + 4 * i] += c;
+            }
+        }
+    }
+
+    private static double[] toFinest(AggregationMultigrid mg, int li, double[] xc, int n) {
+        double[] x = xc;
+        for (int l = li - 1; l >= 0; l--) {
+            double[] xf = new double[mg.operator(l).size()];
+            mg.prolongateAdd(l, x, xf);
+            x = xf;
+        }
+        assertEquals(n, x.length);
+        return x;
+    }
+
+    private static double[] random(Random rnd, int n) {
+        double[] v = new double[n];
+        for (int i = 0; i < n; i++) {
+            v[i] = rnd.nextDouble() - 0.5;
+        }
+        return v;
+    }
+
+    private static double maxAbs(double[] v) {
+        double m = 0;
+        for (double x : v) {
+            m = Math.max(m, Math.abs(x));
+        }
+        return m;
+    }
+}
