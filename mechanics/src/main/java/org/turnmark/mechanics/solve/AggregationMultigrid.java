@@ -258,6 +258,11 @@ final class AggregationMultigrid implements Preconditioner {
         return levels.size();
     }
 
+    @Override
+    public float[] singlePrecisionValues(BlockCsr a) {
+        return ready && !levels.isEmpty() && levels.get(0).a == a ? levels.get(0).af : null;
+    }
+
     /** Operator of level li (0 = finest); for tests. */
     BlockCsr operator(int li) {
         return levels.get(li).a;

@@ -22,6 +22,14 @@ interface Preconditioner {
         setup(a);
     }
 
+    /**
+     * A current single-precision copy of {@code a}'s values (same pattern), if this preconditioner
+     * keeps one, else null.
+     */
+    default float[] singlePrecisionValues(BlockCsr a) {
+        return null;
+    }
+
     /** z = M r; z must not alias r. */
     void apply(double[] r, double[] z);
 }

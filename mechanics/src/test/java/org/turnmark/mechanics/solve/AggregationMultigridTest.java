@@ -64,6 +64,38 @@ class AggregationMultigridTest {
         }
     }
 
+    /**
+     * Conjugate gradients with the multigrid's single-precision products still meet the tolerance in
+     * the true, double-precision residual ‖b − A x‖ ≤ tol·‖b‖, down to the smallest tolerance that
+     * uses them ({@link Pcg#SINGLE_MIN_TOL}).
+     */
+    @Test
+    void singlePrecisionProductsMeetTheToleranceInDoublePrecision() {
+        HexMesh mesh = VoxelBreast.halfEllipsoid(24, 18, 20, 3, true);
+        FeSystem sys = new FeSystem(mesh, MaterialTable.DEFAULTS, HexFormulation.MEAN_DILATATION);
+        int n = 3 * mesh.nodeCount();
+        sys.assemble(new double[n], new double[n], true, new double[1]);
+        Projector proj = new Projector(VoxelBreast.fixedChestWall(mesh));
+        proj.projectMatrix(sys.k);
+        AggregationMultigrid mg = new AggregationMultigrid(mesh.xyzMm());
+        mg.setup(sys.k);
+        assertTrue(mg.singlePrecisionValues(sys.k) != null, "the multigrid keeps a single-precision copy");
+        double[] b = random(new Random(9), n);
+        proj.project(b);
+        double bn = VecOps.norm(b);
+        for (double tol : new double[] {1e-4, Pcg.SINGLE_MIN_TOL}) {
+            double[] x = new double[n];
+            new Pcg().solve(sys.k, mg, b, x, tol, 5000);
+            double[] ax = new double[n];
+            sys.k.multiply(x, ax);
+            double rn = 0;
+            for (int i = 0; i < n; i++) {
+                rn += (b[i] - ax[i]) * (b[i] - ax[i]);
+            }
+            assertTrue(Math.sqrt(rn) <= tol * bn, "true relative residual " + Math.sqrt(rn) / bn + " > " + tol);
+        }
+    }
+
     private static void addDiagonal(BlockCsr a, double c) {
         for (int r = 0; r < a.rows; r++) {
             for (int i = 0; i < 3; i++) {
