@@ -25,7 +25,9 @@ import org.turnmark.geom.Parallel;
  *       is symmetric positive definite; parallel and deterministic.</li>
  *   <li>Coarsest level (≤ {@value #COARSEST_MAX} unknowns): dense Cholesky.</li>
  *   <li>The finest level smooths and forms its residual with a single-precision copy Ã of the
- *       operator (half the memory traffic of the product that dominates the cost). The cycle is
+ *       operator that stores only its upper block triangle ({@link UpperFloatMatrix}; about a
+ *       quarter of the memory traffic of the double-precision product that dominates the cost).
+ *       The cycle is
  *       then the symmetric V-cycle of Ã with the Galerkin coarse operator of A, still a symmetric
  *       positive definite preconditioner for the conjugate gradients on A (rounding each entry
  *       keeps Ã symmetric, and a relative perturbation of 1e−7 does not affect convergence).</li>
@@ -56,8 +58,8 @@ final class AggregationMultigrid implements Preconditioner {
     private double[] coarseFactor;
     /** Dominant-vector estimate of the finest level, kept across setups. */
     private double[] fineEig;
-    /** Reused single-precision buffer of the finest operator. */
-    private float[] fineFloat;
+    /** Reused single-precision copy of the finest operator. */
+    private UpperFloatMatrix fineFloat;
     private int coarseN;
     /** True once {@link #setup} completed (a failed setup leaves no usable hierarchy). */
     private boolean ready;
@@ -69,8 +71,8 @@ final class AggregationMultigrid implements Preconditioner {
     /** One level: operator, smoother, and the prolongator from the next coarser level. */
     private static final class Level {
         BlockCsr a;
-        /** Single-precision copy of the finest operator's values for smoothing (null on coarse levels). */
-        float[] af;
+        /** Single-precision copy of the finest operator for smoothing (null on coarse levels). */
+        UpperFloatMatrix af;
         /**
          * Coarse levels: values of M = Pᵀ M_f P on this level's pattern (M_f = I on the finest level),
          * the change of this operator per unit of diagonal shift; null until a shift changes.
@@ -101,7 +103,7 @@ final class AggregationMultigrid implements Preconditioner {
         /** y = A x for smoothing and residuals: the single-precision copy where there is one. */
         void mul(double[] x, double[] y) {
             if (af != null) {
-                a.multiply(af, x, y);
+                af.multiply(x, y);
             } else {
                 a.multiply(x, y);
             }
@@ -140,8 +142,11 @@ final class AggregationMultigrid implements Preconditioner {
             l.allocate();
             boolean fine = levels.isEmpty();
             if (fine && l.a.b == 3) {
-                l.af = l.a.valuesAsFloat(fineFloat);
-                fineFloat = l.af;
+                if (fineFloat == null || fineFloat.source() != l.a) {
+                    fineFloat = new UpperFloatMatrix(l.a);
+                }
+                fineFloat.refresh();
+                l.af = fineFloat;
             }
             l.dinv.setup(l.a);
             if (fine && fineEig != null && fineEig.length == l.a.size()) {
@@ -194,7 +199,7 @@ final class AggregationMultigrid implements Preconditioner {
         }
         Level l = levels.get(0);
         if (l.af != null) {
-            l.af = a.valuesAsFloat(l.af);
+            l.af.refresh();
         }
         l.dinv.setup(a);
         l.lmax = refreshLambdaMax(l);
@@ -259,7 +264,7 @@ final class AggregationMultigrid implements Preconditioner {
     }
 
     @Override
-    public float[] singlePrecisionValues(BlockCsr a) {
+    public UpperFloatMatrix singlePrecision(BlockCsr a) {
         return ready && !levels.isEmpty() && levels.get(0).a == a ? levels.get(0).af : null;
     }
 

@@ -51,7 +51,7 @@ final class Pcg {
         if (bnorm == 0) {
             return 0;
         }
-        float[] af = tol >= SINGLE_MIN_TOL && a.b == 3 ? m.singlePrecisionValues(a) : null;
+        UpperFloatMatrix af = tol >= SINGLE_MIN_TOL ? m.singlePrecision(a) : null;
         double stop = tol * bnorm;
         double trueResidual = bnorm;
         m.apply(r, z);
@@ -59,7 +59,7 @@ final class Pcg {
         double rz = VecOps.dot(r, z);
         for (int it = 1; it <= maxIter; it++) {
             if (af != null) {
-                a.multiply(af, p, q);
+                af.multiply(p, q);
             } else {
                 a.multiply(p, q);
             }

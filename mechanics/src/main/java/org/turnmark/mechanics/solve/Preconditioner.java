@@ -22,11 +22,8 @@ interface Preconditioner {
         setup(a);
     }
 
-    /**
-     * A current single-precision copy of {@code a}'s values (same pattern), if this preconditioner
-     * keeps one, else null.
-     */
-    default float[] singlePrecisionValues(BlockCsr a) {
+    /** A current single-precision copy of {@code a}, if this preconditioner keeps one, else null. */
+    default UpperFloatMatrix singlePrecision(BlockCsr a) {
         return null;
     }
 

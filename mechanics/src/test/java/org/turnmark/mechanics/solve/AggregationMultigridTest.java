@@ -79,7 +79,7 @@ class AggregationMultigridTest {
         proj.projectMatrix(sys.k);
         AggregationMultigrid mg = new AggregationMultigrid(mesh.xyzMm());
         mg.setup(sys.k);
-        assertTrue(mg.singlePrecisionValues(sys.k) != null, "the multigrid keeps a single-precision copy");
+        assertTrue(mg.singlePrecision(sys.k) != null, "the multigrid keeps a single-precision copy");
         double[] b = random(new Random(9), n);
         proj.project(b);
         double bn = VecOps.norm(b);
