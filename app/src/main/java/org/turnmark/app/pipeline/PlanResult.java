@@ -112,10 +112,36 @@ public record PlanResult(String caution, Map<String, String> software, String cr
      * @param descriptors     descriptors in the supine posture (nipple mapped by the same method)
      * @param sensitivity     per-parameter effects; null without uncertainty
      * @param errorVsTruthMm  distance to the true supine centroid when the case has truth; else null
+     * @param covarianceTerms the terms {@code covarianceMm2} is the sum of (hybrid only); else null
      */
     public record Prediction(String method, String frame, double[] positionRasMm, double[] displacementMm,
                              double[] covarianceMm2, EllipsoidSummary ellipsoid68, EllipsoidSummary ellipsoid95,
-                             Descriptors.Descriptor descriptors, Sensitivity.Ranking sensitivity, Double errorVsTruthMm) {
+                             Descriptors.Descriptor descriptors, Sensitivity.Ranking sensitivity, Double errorVsTruthMm,
+                             CovarianceTerms covarianceTerms) {
+
+        /** A prediction whose covariance is not a sum of recorded terms. */
+        public Prediction(String method, String frame, double[] positionRasMm, double[] displacementMm,
+                          double[] covarianceMm2, EllipsoidSummary ellipsoid68, EllipsoidSummary ellipsoid95,
+                          Descriptors.Descriptor descriptors, Sensitivity.Ranking sensitivity, Double errorVsTruthMm) {
+            this(method, frame, positionRasMm, displacementMm, covarianceMm2, ellipsoid68, ellipsoid95, descriptors,
+                    sensitivity, errorVsTruthMm, null);
+        }
+    }
+
+    /**
+     * The terms of the hybrid covariance, all in the supine image frame, 3×3 row-major (mm²):
+     * Σ = markingWeight · marking + registrationSdMm² I + mechanicsWeight · mechanics.
+     *
+     * @param markingMm2        lesion-marking error propagated through the mechanics map (J Σ Jᵀ), rotated
+     *                          into the supine frame
+     * @param markingWeight     1 when the centroid is the mark or its intensity-weighted refinement, 0 when
+     *                          it was refined on a lesion label
+     * @param registrationSdMm  isotropic SD of the registration's own error (mm)
+     * @param mechanicsMm2      the mechanics-only covariance in the supine frame (sample spread + marking term)
+     * @param mechanicsWeight   share of it kept after the registration
+     */
+    public record CovarianceTerms(double[] markingMm2, double markingWeight, double registrationSdMm,
+                                  double[] mechanicsMm2, double mechanicsWeight) {
     }
 
     /**

@@ -286,11 +286,14 @@ public final class Planner {
                         describe(li.side, xms, reg.proneFrameToSupine(nipSup), surfaces, supNodesS), rank, err(truthS, xms),
                         ellSupine));
                 double[] xh = reg.hybridPoint(x0);
-                double[] covH = Covariance3.add(Covariance3.add(reg.rotateCovariance(markCov),
-                        Covariance3.isotropic(c.priors().registrationSdMm())), covM == null ? new double[9]
-                        : scale(reg.rotateCovariance(covM), SupineStage.HYBRID_START_WEIGHT));
-                preds.add(prediction(PlanResult.HYBRID, PlanResult.FRAME_SUPINE, x0, xh, covM == null ? null : covH,
-                        describe(li.side, xh, reg.hybridPoint(nip), surfaces, supNodesS), null, err(truthS, xh), ellSupine));
+                // Hybrid covariance (docs/planner.md, Uncertainty): the marking term only when the centroid was
+                // not refined on a lesion label (a label centroid carries no hand-marking error), the
+                // registration's own error, and a share of the mechanics-only covariance of its start.
+                PlanResult.CovarianceTerms terms = covMs == null ? null : new PlanResult.CovarianceTerms(
+                        reg.rotateCovariance(markCov), li.mark.label() != null ? 0 : 1, c.priors().registrationSdMm(),
+                        covMs, SupineStage.HYBRID_START_WEIGHT);
+                preds.add(prediction(PlanResult.HYBRID, PlanResult.FRAME_SUPINE, x0, xh, terms,
+                        describe(li.side, xh, reg.hybridPoint(nip), surfaces, supNodesS), err(truthS, xh), ellSupine));
                 double[] xr = reg.registrationOnlyPoint(x0);
                 preds.add(prediction(PlanResult.REGISTRATION, PlanResult.FRAME_SUPINE, x0, xr, null,
                         describe(li.side, xr, reg.registrationOnlyPoint(nip), surfaces, supNodesS), null, err(truthS, xr), null));
@@ -380,6 +383,22 @@ public final class Planner {
             }
         }
         return new PlanResult.Prediction(method, frame, x, diff(x, x0), cov, e68, e95, d, rank, err);
+    }
+
+    /** A prediction whose covariance is the sum of {@code terms} (null terms: no covariance). */
+    private static PlanResult.Prediction prediction(String method, String frame, double[] x0, double[] x,
+                                                    PlanResult.CovarianceTerms terms, Descriptors.Descriptor d,
+                                                    Double err, List<Ellipsoid> sink) {
+        PlanResult.Prediction p = prediction(method, frame, x0, x, terms == null ? null : covariance(terms), d, null,
+                err, sink);
+        return new PlanResult.Prediction(p.method(), p.frame(), p.positionRasMm(), p.displacementMm(),
+                p.covarianceMm2(), p.ellipsoid68(), p.ellipsoid95(), p.descriptors(), null, err, terms);
+    }
+
+    /** Σ = markingWeight · marking + registrationSdMm² I + mechanicsWeight · mechanics (mm²). */
+    static double[] covariance(PlanResult.CovarianceTerms t) {
+        return Covariance3.add(Covariance3.add(scale(t.markingMm2(), t.markingWeight()),
+                Covariance3.isotropic(t.registrationSdMm())), scale(t.mechanicsMm2(), t.mechanicsWeight()));
     }
 
     private static Double err(double[] truth, double[] x) {

@@ -80,8 +80,13 @@ public final class BenchCalibration {
      */
     record Row(long seed, String lesion, String method, double[] errorMm, double errorNormMm, Double d2,
                Boolean inside68, Boolean inside95, double[] semiAxes95Mm, int samplesOk, int samplesRequested,
-               double planSeconds) {
+               double planSeconds, double[] covarianceMm2, PlanResult.CovarianceTerms terms, String refinement) {
     }
+
+    /** Unique entries of a symmetric 3×3 (row-major) in the order the CSV names them. */
+    static final int[] SYMMETRIC = {0, 4, 8, 1, 2, 5};
+    /** Their CSV suffixes (RAS axes). */
+    static final String[] SYMMETRIC_NAMES = {"xx", "yy", "zz", "xy", "xz", "yz"};
 
     public static void main(String[] args) throws IOException {
         Settings s;
@@ -222,7 +227,8 @@ public final class BenchCalibration {
                     in95 = d2 <= chi95;
                     axes = p.ellipsoid95() != null ? p.ellipsoid95().semiAxesMm() : null;
                 }
-                rows.add(new Row(seed, l.id(), method, e, norm, d2, in68, in95, axes, ok, requested, planSeconds));
+                rows.add(new Row(seed, l.id(), method, e, norm, d2, in68, in95, axes, ok, requested, planSeconds,
+                        p.covarianceMm2(), p.covarianceTerms(), l.refinement()));
             }
         }
         return rows;
@@ -341,8 +347,17 @@ public final class BenchCalibration {
     private static void writeCsv(Path csv, List<Row> rows) throws IOException {
         StringBuilder b = new StringBuilder();
         b.append("# ").append(ResearchUse.SHORT).append('\n');
+        b.append("# errors (truth - prediction) and covariances in the supine image frame, world RAS+ mm / mm2; "
+                + "cov_*: the prediction's covariance; hyb_marking_*, hyb_mechanics_*, hyb_registration_sd_mm: the "
+                + "hybrid covariance terms (cov = marking_weight * marking + sd^2 I + mechanics_weight * mechanics)\n");
         b.append("seed,lesion,method,error_mm,error_x_mm,error_y_mm,error_z_mm,d2,inside_68,inside_95,"
-                + "semi_axis95_1_mm,semi_axis95_2_mm,semi_axis95_3_mm,samples_ok,samples_requested,plan_s\n");
+                + "semi_axis95_1_mm,semi_axis95_2_mm,semi_axis95_3_mm,samples_ok,samples_requested,plan_s");
+        for (String prefix : new String[] {"cov_", "hyb_marking_", "hyb_mechanics_"}) {
+            for (String n : SYMMETRIC_NAMES) {
+                b.append(',').append(prefix).append(n).append("_mm2");
+            }
+        }
+        b.append(",hyb_registration_sd_mm,hyb_marking_weight,hyb_mechanics_weight,centroid_refined_on_label\n");
         for (Row r : rows) {
             b.append(r.seed()).append(',').append(r.lesion()).append(',').append(r.method()).append(',')
                     .append(num(r.errorNormMm())).append(',').append(num(r.errorMm()[0])).append(',')
@@ -354,7 +369,18 @@ public final class BenchCalibration {
                 b.append(',').append(r.semiAxes95Mm() == null ? "" : num(r.semiAxes95Mm()[i]));
             }
             b.append(',').append(r.samplesOk()).append(',').append(r.samplesRequested()).append(',')
-                    .append(num(r.planSeconds())).append('\n');
+                    .append(num(r.planSeconds()));
+            PlanResult.CovarianceTerms t = r.terms();
+            for (double[] m : new double[][] {r.covarianceMm2(), t == null ? null : t.markingMm2(),
+                    t == null ? null : t.mechanicsMm2()}) {
+                for (int k : SYMMETRIC) {
+                    b.append(',').append(m == null ? "" : num(m[k]));
+                }
+            }
+            b.append(',').append(t == null ? "" : num(t.registrationSdMm())).append(',')
+                    .append(t == null ? "" : num(t.markingWeight())).append(',')
+                    .append(t == null ? "" : num(t.mechanicsWeight())).append(',')
+                    .append(r.refinement() != null && r.refinement().startsWith("centroid of label")).append('\n');
         }
         Path abs = csv.toAbsolutePath();
         Path dir = abs.getParent();

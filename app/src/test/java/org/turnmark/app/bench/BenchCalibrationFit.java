@@ -1,0 +1,390 @@
+package org.turnmark.app.bench;
+
+import java.io.IOException;
+import java.nio.charset.StandardCharsets;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.ArrayList;
+import java.util.HashMap;
+import java.util.List;
+import java.util.Locale;
+import java.util.Map;
+
+import org.apache.commons.math3.optim.MaxEval;
+import org.apache.commons.math3.optim.nonlinear.scalar.GoalType;
+import org.apache.commons.math3.optim.univariate.BrentOptimizer;
+import org.apache.commons.math3.optim.univariate.SearchInterval;
+import org.apache.commons.math3.optim.univariate.UnivariateObjectiveFunction;
+import org.turnmark.app.pipeline.PlanResult;
+import org.turnmark.app.uncertainty.Coverage;
+import org.turnmark.app.uncertainty.Ellipsoid;
+import org.turnmark.geom.ResearchUse;
+
+/**
+ * Maximum-likelihood fit of the hybrid covariance model to a calibration CSV written by
+ * {@link BenchCalibration}, and its check on held-out seeds (a benchmark tool, not a test; command in
+ * docs/benchmarks.md, "Calibration of the 95 % ellipsoid").
+ *
+ * <p>Model (docs/planner.md, Uncertainty): for lesion i the hybrid error e_i (truth − prediction, supine
+ * frame, mm) is taken as Gaussian N(0, Σ_i) with Σ_i = a_i K_i + s² I + w M_i: K_i the lesion-marking term
+ * and a_i its weight as the plan used it (0 for a centroid refined on a lesion label), M_i the
+ * mechanics-only covariance in the supine frame, s the registration SD (mm) and w the share of the
+ * mechanics covariance kept. The fit maximises the Gaussian log-likelihood
+ * −½ Σ_i (log det Σ_i + e_iᵀ Σ_i⁻¹ e_i) over s &gt; 0 and w ≥ 0: for each w the profile over log s by Brent's
+ * method, w on a grid and then by Brent's method around the best grid point. Standard errors from the
+ * numerical Hessian of the negative log-likelihood (observed information) at the optimum.
+ *
+ * <pre>
+ * java -cp app/target/turnmark.jar:app/target/test-classes org.turnmark.app.bench.BenchCalibrationFit \
+ *   --csv docs/calibration-hybrid-2026-12-02.csv --fit 1-24 --check 25-48 [--planner-sd-mm S --planner-weight W]
+ * </pre>
+ */
+public final class BenchCalibrationFit {
+
+    /** Search range of the registration SD s (mm): below 0.01 mm is below any voxel, above 20 mm no plan. */
+    static final double MIN_SD_MM = 0.01;
+    static final double MAX_SD_MM = 20;
+    /** Search range of the mechanics weight w, and the grid step over it before Brent's refinement. */
+    static final double MAX_WEIGHT = 2;
+    static final double WEIGHT_STEP = 0.005;
+    /** Brent tolerances (relative, absolute) on log s and on w: far below what the data can resolve. */
+    private static final double REL_TOL = 1e-10;
+    private static final double ABS_TOL = 1e-10;
+    private static final int MAX_EVAL = 500;
+
+    private BenchCalibrationFit() {
+    }
+
+    /**
+     * One lesion's hybrid error and covariance terms (supine frame).
+     *
+     * @param seed         phantom seed
+     * @param errorMm      e = truth − prediction (mm)
+     * @param markingMm2   K, 3×3 row-major (mm²)
+     * @param markingWeight a, as the plan used it
+     * @param mechanicsMm2 M, 3×3 row-major (mm²)
+     */
+    record Case(long seed, double[] errorMm, double[] markingMm2, double markingWeight, double[] mechanicsMm2) {
+    }
+
+    /**
+     * Fitted parameters.
+     *
+     * @param registrationSdMm s (mm)
+     * @param mechanicsWeight  w
+     * @param sdSeMm           standard error of s (mm), NaN when w is on its bound
+     * @param weightSe         standard error of w, NaN when w is on its bound
+     * @param negLogLik        ½ Σ (log det Σ + d²) at the optimum (constant 3/2 log 2π per case omitted)
+     */
+    record Fit(double registrationSdMm, double mechanicsWeight, double sdSeMm, double weightSe, double negLogLik) {
+    }
+
+    /** Σ_i = a K + s² I + w M (mm²). */
+    static double[] covariance(Case c, double sdMm, double weight) {
+        double[] s = new double[9];
+        for (int k = 0; k < 9; k++) {
+            s[k] = c.markingWeight() * c.markingMm2()[k] + weight * c.mechanicsMm2()[k];
+        }
+        s[0] += sdMm * sdMm;
+        s[4] += sdMm * sdMm;
+        s[8] += sdMm * sdMm;
+        return s;
+    }
+
+    /** ½ Σ_i (log det Σ_i + e_iᵀ Σ_i⁻¹ e_i); +∞ where some Σ_i is not positive definite. */
+    static double negLogLik(List<Case> cases, double sdMm, double weight) {
+        double sum = 0;
+        for (Case c : cases) {
+            double[] s = covariance(c, sdMm, weight);
+            double det = det3(s);
+            if (!(det > 0)) {
+                return Double.POSITIVE_INFINITY;
+            }
+            sum += Math.log(det) + Coverage.mahalanobisSquared(c.errorMm(), s);
+        }
+        return 0.5 * sum;
+    }
+
+    /** ML registration SD for a fixed mechanics weight (Brent on log s). */
+    static double profileSd(List<Case> cases, double weight) {
+        BrentOptimizer opt = new BrentOptimizer(REL_TOL, ABS_TOL);
+        return Math.exp(opt.optimize(new MaxEval(MAX_EVAL), GoalType.MINIMIZE,
+                new UnivariateObjectiveFunction(ls -> negLogLik(cases, Math.exp(ls), weight)),
+                new SearchInterval(Math.log(MIN_SD_MM), Math.log(MAX_SD_MM))).getPoint());
+    }
+
+    /** ML fit of s and w. */
+    static Fit fit(List<Case> cases) {
+        if (cases.isEmpty()) {
+            throw new IllegalArgumentException("no cases to fit");
+        }
+        double bestW = 0;
+        double best = Double.POSITIVE_INFINITY;
+        int steps = (int) Math.round(MAX_WEIGHT / WEIGHT_STEP);
+        for (int i = 0; i <= steps; i++) {
+            double w = i * WEIGHT_STEP;
+            double v = negLogLik(cases, profileSd(cases, w), w);
+            if (v < best) {
+                best = v;
+                bestW = w;
+            }
+        }
+        double lo = Math.max(0, bestW - WEIGHT_STEP);
+        double hi = Math.min(MAX_WEIGHT, bestW + WEIGHT_STEP);
+        BrentOptimizer opt = new BrentOptimizer(REL_TOL, ABS_TOL);
+        double w = opt.optimize(new MaxEval(MAX_EVAL), GoalType.MINIMIZE,
+                new UnivariateObjectiveFunction(x -> negLogLik(cases, profileSd(cases, x), x)),
+                new SearchInterval(lo, hi, bestW)).getPoint();
+        if (negLogLik(cases, profileSd(cases, 0), 0) <= negLogLik(cases, profileSd(cases, w), w)) {
+            w = 0; // the boundary
+        }
+        double s = profileSd(cases, w);
+        double nll = negLogLik(cases, s, w);
+        double seS = Double.NaN;
+        double seW = Double.NaN;
+        if (w > 2 * WEIGHT_STEP) {
+            // Observed information: central second differences of the NLL in (s, w).
+            double hs = 1e-3 * s;
+            double hw = 1e-3 * Math.max(w, WEIGHT_STEP);
+            double fss = (negLogLik(cases, s + hs, w) - 2 * nll + negLogLik(cases, s - hs, w)) / (hs * hs);
+            double fww = (negLogLik(cases, s, w + hw) - 2 * nll + negLogLik(cases, s, w - hw)) / (hw * hw);
+            double fsw = (negLogLik(cases, s + hs, w + hw) - negLogLik(cases, s + hs, w - hw)
+                    - negLogLik(cases, s - hs, w + hw) + negLogLik(cases, s - hs, w - hw)) / (4 * hs * hw);
+            double det = fss * fww - fsw * fsw;
+            if (det > 0) {
+                seS = Math.sqrt(fww / det);
+                seW = Math.sqrt(fss / det);
+            }
+        }
+        return new Fit(s, w, seS, seW, nll);
+    }
+
+    /** Coverage counts and mean d² of a covariance model over cases. */
+    record Check(int n, int inside68, int inside95, double meanD2) {
+    }
+
+    /** Checks Σ(s, w) on the cases: d² against χ²₃(0.6827) and χ²₃(0.95). */
+    static Check check(List<Case> cases, double sdMm, double weight) {
+        double chi68 = Ellipsoid.chiSquare3(0.6827);
+        double chi95 = Ellipsoid.chiSquare3(0.95);
+        int in68 = 0;
+        int in95 = 0;
+        double sum = 0;
+        for (Case c : cases) {
+            double d2 = Coverage.mahalanobisSquared(c.errorMm(), covariance(c, sdMm, weight));
+            in68 += d2 <= chi68 ? 1 : 0;
+            in95 += d2 <= chi95 ? 1 : 0;
+            sum += d2;
+        }
+        return new Check(cases.size(), in68, in95, cases.isEmpty() ? Double.NaN : sum / cases.size());
+    }
+
+    /** Reads the hybrid rows of a calibration CSV (lines starting with '#' skipped). */
+    static List<Case> read(Path csv) throws IOException {
+        List<String> lines = Files.readAllLines(csv, StandardCharsets.UTF_8);
+        Map<String, Integer> col = null;
+        List<Case> out = new ArrayList<>();
+        for (int ln = 0; ln < lines.size(); ln++) {
+            String line = lines.get(ln);
+            if (line.startsWith("#") || line.isBlank()) {
+                continue;
+            }
+            String[] f = line.split(",", -1);
+            if (col == null) {
+                col = new HashMap<>();
+                for (int i = 0; i < f.length; i++) {
+                    col.put(f[i], i);
+                }
+                for (String need : new String[] {"seed", "method", "error_x_mm", "hyb_marking_xx_mm2",
+                        "hyb_mechanics_xx_mm2", "hyb_marking_weight"}) {
+                    if (!col.containsKey(need)) {
+                        throw new IOException(csv + ": header has no column '" + need + "' (a CSV of BenchCalibration "
+                                + "with the hybrid covariance terms is expected)");
+                    }
+                }
+                continue;
+            }
+            if (!PlanResult.HYBRID.equals(f[col.get("method")]) || f[col.get("hyb_marking_xx_mm2")].isEmpty()) {
+                continue;
+            }
+            try {
+                double[] e = {num(f, col, "error_x_mm"), num(f, col, "error_y_mm"), num(f, col, "error_z_mm")};
+                out.add(new Case(Long.parseLong(f[col.get("seed")]), e, symmetric(f, col, "hyb_marking_"),
+                        num(f, col, "hyb_marking_weight"), symmetric(f, col, "hyb_mechanics_")));
+            } catch (RuntimeException ex) {
+                throw new IOException(csv + " line " + (ln + 1) + ": " + ex.getMessage(), ex);
+            }
+        }
+        return out;
+    }
+
+    /** Seed and d² (as the plan computed it) of every row of {@code method} with a d², from a calibration CSV. */
+    static List<double[]> readD2(Path csv, String method) throws IOException {
+        Map<String, Integer> col = null;
+        List<double[]> out = new ArrayList<>();
+        for (String line : Files.readAllLines(csv, StandardCharsets.UTF_8)) {
+            if (line.startsWith("#") || line.isBlank()) {
+                continue;
+            }
+            String[] f = line.split(",", -1);
+            if (col == null) {
+                col = new HashMap<>();
+                for (int i = 0; i < f.length; i++) {
+                    col.put(f[i], i);
+                }
+                continue;
+            }
+            if (method.equals(f[col.get("method")]) && !f[col.get("d2")].isEmpty()) {
+                out.add(new double[] {Long.parseLong(f[col.get("seed")]), num(f, col, "d2")});
+            }
+        }
+        return out;
+    }
+
+    /** Coverage counts and mean d² of given d² values with seeds in a range. */
+    static Check checkD2(List<double[]> seedD2, long[] range) {
+        double chi68 = Ellipsoid.chiSquare3(0.6827);
+        double chi95 = Ellipsoid.chiSquare3(0.95);
+        int n = 0;
+        int in68 = 0;
+        int in95 = 0;
+        double sum = 0;
+        for (double[] r : seedD2) {
+            if (r[0] >= range[0] && r[0] <= range[1]) {
+                n++;
+                in68 += r[1] <= chi68 ? 1 : 0;
+                in95 += r[1] <= chi95 ? 1 : 0;
+                sum += r[1];
+            }
+        }
+        return new Check(n, in68, in95, n == 0 ? Double.NaN : sum / n);
+    }
+
+    private static double num(String[] f, Map<String, Integer> col, String name) {
+        return Double.parseDouble(f[col.get(name)]);
+    }
+
+    private static double[] symmetric(String[] f, Map<String, Integer> col, String prefix) {
+        double[] m = new double[9];
+        for (int k = 0; k < BenchCalibration.SYMMETRIC.length; k++) {
+            String name = prefix + BenchCalibration.SYMMETRIC_NAMES[k] + "_mm2";
+            Integer i = col.get(name);
+            if (i == null) {
+                throw new IllegalArgumentException("no column " + name);
+            }
+            double v = Double.parseDouble(f[i]);
+            int idx = BenchCalibration.SYMMETRIC[k];
+            m[idx] = v;
+            m[(idx % 3) * 3 + idx / 3] = v;
+        }
+        return m;
+    }
+
+    static double det3(double[] a) {
+        return a[0] * (a[4] * a[8] - a[5] * a[7]) - a[1] * (a[3] * a[8] - a[5] * a[6])
+                + a[2] * (a[3] * a[7] - a[4] * a[6]);
+    }
+
+    private static List<Case> select(List<Case> all, long[] range) {
+        List<Case> out = new ArrayList<>();
+        for (Case c : all) {
+            if (c.seed() >= range[0] && c.seed() <= range[1]) {
+                out.add(c);
+            }
+        }
+        return out;
+    }
+
+    private static long[] range(String v) {
+        String[] p = v.split("-");
+        if (p.length != 2) {
+            throw new IllegalArgumentException("a seed range FROM-TO is expected, got '" + v + "'");
+        }
+        return new long[] {Long.parseLong(p[0].trim()), Long.parseLong(p[1].trim())};
+    }
+
+    private static String row(String model, String set, Check c) {
+        if (c.n() == 0) {
+            return "| " + model + " | " + set + " | 0 | – | – | – | – | – |";
+        }
+        Coverage.Interval a = Coverage.clopperPearson(c.inside68(), c.n(), 0.95);
+        Coverage.Interval b = Coverage.clopperPearson(c.inside95(), c.n(), 0.95);
+        return String.format(Locale.ROOT, "| %s | %s | %d | %d / %d | %.1f %% (%.1f–%.1f %%) | %d / %d | %.1f %% "
+                        + "(%.1f–%.1f %%) | %.2f |", model, set, c.n(), c.inside68(), c.n(), 100.0 * c.inside68() / c.n(),
+                100 * a.lower(), 100 * a.upper(), c.inside95(), c.n(), 100.0 * c.inside95() / c.n(), 100 * b.lower(),
+                100 * b.upper(), c.meanD2());
+    }
+
+    public static void main(String[] args) throws IOException {
+        Path csv = null;
+        long[] fitRange = null;
+        long[] checkRange = null;
+        double oldSd = 1.5;
+        double oldWeight = 0.25;
+        Double plannerSd = null;
+        Double plannerWeight = null;
+        for (int i = 0; i + 1 < args.length; i += 2) {
+            switch (args[i]) {
+                case "--csv" -> csv = Path.of(args[i + 1]);
+                case "--fit" -> fitRange = range(args[i + 1]);
+                case "--check" -> checkRange = range(args[i + 1]);
+                case "--compare-sd-mm" -> oldSd = Double.parseDouble(args[i + 1]);
+                case "--compare-weight" -> oldWeight = Double.parseDouble(args[i + 1]);
+                case "--planner-sd-mm" -> plannerSd = Double.parseDouble(args[i + 1]);
+                case "--planner-weight" -> plannerWeight = Double.parseDouble(args[i + 1]);
+                default -> throw new IllegalArgumentException("unknown option " + args[i]);
+            }
+        }
+        if (csv == null || fitRange == null || checkRange == null) {
+            System.err.println("usage: BenchCalibrationFit --csv FILE --fit FROM-TO --check FROM-TO "
+                    + "[--compare-sd-mm 1.5 --compare-weight 0.25] [--planner-sd-mm S --planner-weight W]");
+            System.exit(2);
+            return;
+        }
+        if (fitRange[1] >= checkRange[0] && checkRange[1] >= fitRange[0]) {
+            throw new IllegalArgumentException("fit and check seed ranges overlap");
+        }
+        List<Case> all = read(csv);
+        List<Case> fitSet = select(all, fitRange);
+        List<Case> checkSet = select(all, checkRange);
+        Fit f = fit(fitSet);
+        String fitName = "seeds " + fitRange[0] + "–" + fitRange[1] + " (fit)";
+        String checkName = "seeds " + checkRange[0] + "–" + checkRange[1] + " (held out)";
+        System.out.println("# " + ResearchUse.SHORT);
+        System.out.printf(Locale.ROOT, "%s: %d hybrid lesions from %s; Σ = a K + s² I + w M%n", fitName, fitSet.size(),
+                csv);
+        System.out.printf(Locale.ROOT, "ML fit: s = %.3f mm (SE %.3f mm), w = %.4f (SE %.4f); −log L = %.3f "
+                + "(+ 3/2 log 2π per lesion)%n", f.registrationSdMm(), f.sdSeMm(), f.mechanicsWeight(), f.weightSe(),
+                f.negLogLik());
+        Fit s0 = new Fit(profileSd(fitSet, 0), 0, Double.NaN, Double.NaN, 0);
+        System.out.printf(Locale.ROOT, "for comparison, w = 0: s = %.3f mm, −log L = %.3f%n", s0.registrationSdMm(),
+                negLogLik(fitSet, s0.registrationSdMm(), 0));
+        System.out.println();
+        System.out.println("| hybrid covariance | seeds | lesions | inside 68 % | 68 % coverage (95 % CI) | inside 95 % "
+                + "| 95 % coverage (95 % CI) | mean d² (3 if calibrated) |");
+        System.out.println("|---|---|---|---|---|---|---|---|");
+        String fitted = String.format(Locale.ROOT, "fitted: s = %.2f mm, w = %.3f", f.registrationSdMm(),
+                f.mechanicsWeight());
+        String old = String.format(Locale.ROOT, "previous: s = %.2f mm, w = %.3f, marking term always", oldSd,
+                oldWeight);
+        List<double[]> mech = readD2(csv, BenchCalibration.MECHANICS_SUPINE);
+        System.out.println(row("mechanics-only (supine frame; unchanged)", fitName, checkD2(mech, fitRange)));
+        System.out.println(row("mechanics-only (supine frame; unchanged)", checkName, checkD2(mech, checkRange)));
+        System.out.println(row(fitted, fitName, check(fitSet, f.registrationSdMm(), f.mechanicsWeight())));
+        System.out.println(row(fitted, checkName, check(checkSet, f.registrationSdMm(), f.mechanicsWeight())));
+        if (plannerSd != null && plannerWeight != null) {
+            // The planner's defaults (the fit rounded), marking weight as the plans used it.
+            String pl = String.format(Locale.ROOT, "planner defaults: s = %s mm, w = %s", plannerSd, plannerWeight);
+            System.out.println(row(pl, fitName, check(fitSet, plannerSd, plannerWeight)));
+            System.out.println(row(pl, checkName, check(checkSet, plannerSd, plannerWeight)));
+        }
+        for (String[] set : new String[][] {{fitName}, {checkName}}) {
+            List<Case> cs = set[0].equals(fitName) ? fitSet : checkSet;
+            List<Case> withMarking = new ArrayList<>();
+            for (Case c : cs) {
+                withMarking.add(new Case(c.seed(), c.errorMm(), c.markingMm2(), 1, c.mechanicsMm2()));
+            }
+            System.out.println(row(old, set[0], check(withMarking, oldSd, oldWeight)));
+        }
+    }
+}

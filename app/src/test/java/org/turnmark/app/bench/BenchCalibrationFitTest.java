@@ -1,0 +1,162 @@
+package org.turnmark.app.bench;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.ArrayList;
+import java.util.List;
+import java.util.Random;
+
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.io.TempDir;
+
+class BenchCalibrationFitTest {
+
+    /** Seeded synthetic data: the same draws every run. */
+    private static final long SEED = 20261202L;
+    /** Lesions in the synthetic recovery test: enough for standard errors of a few per cent. */
+    private static final int N = 1000;
+    /** True parameters of the synthetic data (of the order the calibration run finds). */
+    private static final double TRUE_SD_MM = 1.2;
+    private static final double TRUE_WEIGHT = 0.06;
+    /**
+     * An ML estimate lies within 4 of its standard errors of the truth except with probability ≈ 6e-5
+     * (normal tail; asymptotic normality of ML estimates).
+     */
+    private static final double SE_BAND = 4;
+    /** The fit must resolve the parameters: standard errors below this fraction of the true value. */
+    private static final double MAX_RELATIVE_SE = 0.15;
+    /**
+     * Mean d² at the optimum: Brent's method locates a minimum only to about √ε ≈ 1e-8 (relative) and mean
+     * d² moves in proportion to the parameter error; 1e-4 leaves a wide margin.
+     */
+    private static final double STATIONARY_TOL = 1e-4;
+    /** Brent tolerances are 1e-10; the closed form is matched far inside this. */
+    private static final double CLOSED_FORM_REL_TOL = 1e-6;
+
+    @Test
+    void isotropicProfileMatchesTheClosedForm() {
+        // Zero-mean isotropic Gaussian, M = 0: the ML variance is Σ|e|² / (3N) (closed form, from memory:
+        // d/ds² of N·3/2 log s² + Σ|e|²/(2 s²) vanishes there).
+        Random r = new Random(SEED);
+        List<BenchCalibrationFit.Case> cases = new ArrayList<>();
+        double sum = 0;
+        for (int i = 0; i < 50; i++) {
+            double[] e = {2 * r.nextGaussian(), 2 * r.nextGaussian(), 2 * r.nextGaussian()};
+            sum += e[0] * e[0] + e[1] * e[1] + e[2] * e[2];
+            cases.add(new BenchCalibrationFit.Case(i, e, new double[9], 0, new double[9]));
+        }
+        double expected = Math.sqrt(sum / (3 * cases.size()));
+        assertEquals(expected, BenchCalibrationFit.profileSd(cases, 0), CLOSED_FORM_REL_TOL * expected);
+    }
+
+    @Test
+    void recoversKnownParametersFromSyntheticGaussianErrors() {
+        Random r = new Random(SEED);
+        List<BenchCalibrationFit.Case> cases = new ArrayList<>();
+        for (int i = 0; i < N; i++) {
+            // An elongated mechanics covariance in a random orientation (long axis 10–15 mm SD, like the plans).
+            double[] lambda = {100 + 125 * r.nextDouble(), 1 + 5 * r.nextDouble(), 1 + 5 * r.nextDouble()};
+            double[] q = rotation(r);
+            double[] m = new double[9];
+            for (int a = 0; a < 3; a++) {
+                for (int b = 0; b < 3; b++) {
+                    double v = 0;
+                    for (int k = 0; k < 3; k++) {
+                        v += q[a * 3 + k] * lambda[k] * q[b * 3 + k];
+                    }
+                    m[a * 3 + b] = v;
+                }
+            }
+            double[] marking = {2, 0, 0, 0, 2, 0, 0, 0, 2};
+            BenchCalibrationFit.Case shape = new BenchCalibrationFit.Case(i, null, marking, 0, m);
+            double[] l = cholesky(BenchCalibrationFit.covariance(shape, TRUE_SD_MM, TRUE_WEIGHT));
+            double[] z = {r.nextGaussian(), r.nextGaussian(), r.nextGaussian()};
+            double[] e = {l[0] * z[0], l[3] * z[0] + l[4] * z[1], l[6] * z[0] + l[7] * z[1] + l[8] * z[2]};
+            cases.add(new BenchCalibrationFit.Case(i, e, marking, 0, m));
+        }
+        BenchCalibrationFit.Fit f = BenchCalibrationFit.fit(cases);
+        assertTrue(f.sdSeMm() < MAX_RELATIVE_SE * TRUE_SD_MM, "SE of s " + f.sdSeMm());
+        assertTrue(f.weightSe() < MAX_RELATIVE_SE * TRUE_WEIGHT, "SE of w " + f.weightSe());
+        assertEquals(TRUE_SD_MM, f.registrationSdMm(), SE_BAND * f.sdSeMm());
+        assertEquals(TRUE_WEIGHT, f.mechanicsWeight(), SE_BAND * f.weightSe());
+        // The maximum likelihood is at least as high as at the true parameters.
+        assertTrue(f.negLogLik() <= BenchCalibrationFit.negLogLik(cases, TRUE_SD_MM, TRUE_WEIGHT));
+        // Σ = s² I + w M is linear in (s², w), so scaling both by c scales Σ by c; the likelihood's derivative
+        // along that direction vanishes at an interior optimum, which gives mean d² = 3 exactly on the fit data
+        // (closed form: d/dc of Σ (3 log c + d²/c) = 0 at c = 1).
+        assertEquals(3, BenchCalibrationFit.check(cases, f.registrationSdMm(), f.mechanicsWeight()).meanD2(),
+                STATIONARY_TOL);
+    }
+
+    @Test
+    void readsTheHybridRowsOfABenchCalibrationCsv(@TempDir Path dir) throws Exception {
+        StringBuilder b = new StringBuilder("# caution\n# note\nseed,lesion,method,error_x_mm,error_y_mm,error_z_mm");
+        for (String p : new String[] {"hyb_marking_", "hyb_mechanics_"}) {
+            for (String n : BenchCalibration.SYMMETRIC_NAMES) {
+                b.append(',').append(p).append(n).append("_mm2");
+            }
+        }
+        b.append(",hyb_marking_weight\n");
+        b.append("3,L1,mechanics-only (supine frame),1,2,3,,,,,,,,,,,,,\n");
+        b.append("3,L1,hybrid,1,2,3,1,2,3,0.1,0.2,0.3,10,20,30,1,2,3,0\n");
+        Path csv = dir.resolve("c.csv");
+        Files.writeString(csv, b);
+        List<BenchCalibrationFit.Case> cases = BenchCalibrationFit.read(csv);
+        assertEquals(1, cases.size());
+        BenchCalibrationFit.Case c = cases.get(0);
+        assertEquals(3, c.seed());
+        // Row-major symmetric: xx yy zz xy xz yz → [0] [4] [8] [1]=[3] [2]=[6] [5]=[7].
+        double[] k = c.markingMm2();
+        assertEquals(1, k[0]);
+        assertEquals(2, k[4]);
+        assertEquals(3, k[8]);
+        assertEquals(0.1, k[1]);
+        assertEquals(0.1, k[3]);
+        assertEquals(0.2, k[2]);
+        assertEquals(0.2, k[6]);
+        assertEquals(0.3, k[5]);
+        assertEquals(0.3, k[7]);
+        assertEquals(20, c.mechanicsMm2()[4]);
+        assertEquals(3, c.mechanicsMm2()[7]);
+    }
+
+    /** A random rotation (QR-free: Gram–Schmidt of three Gaussian vectors), row-major. */
+    private static double[] rotation(Random r) {
+        double[][] v = new double[3][3];
+        for (int i = 0; i < 3; i++) {
+            for (int k = 0; k < 3; k++) {
+                v[i][k] = r.nextGaussian();
+            }
+            for (int j = 0; j < i; j++) {
+                double d = v[i][0] * v[j][0] + v[i][1] * v[j][1] + v[i][2] * v[j][2];
+                for (int k = 0; k < 3; k++) {
+                    v[i][k] -= d * v[j][k];
+                }
+            }
+            double n = Math.sqrt(v[i][0] * v[i][0] + v[i][1] * v[i][1] + v[i][2] * v[i][2]);
+            for (int k = 0; k < 3; k++) {
+                v[i][k] /= n;
+            }
+        }
+        // Columns are the orthonormal vectors.
+        return new double[] {v[0][0], v[1][0], v[2][0], v[0][1], v[1][1], v[2][1], v[0][2], v[1][2], v[2][2]};
+    }
+
+    /** Lower Cholesky factor of a 3×3 SPD matrix, row-major. */
+    private static double[] cholesky(double[] a) {
+        double[] l = new double[9];
+        for (int i = 0; i < 3; i++) {
+            for (int j = 0; j <= i; j++) {
+                double s = a[i * 3 + j];
+                for (int k = 0; k < j; k++) {
+                    s -= l[i * 3 + k] * l[j * 3 + k];
+                }
+                l[i * 3 + j] = i == j ? Math.sqrt(s) : s / l[j * 3 + j];
+            }
+        }
+        return l;
+    }
+}
