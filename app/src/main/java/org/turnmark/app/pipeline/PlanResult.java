@@ -129,19 +129,20 @@ public record PlanResult(String caution, Map<String, String> software, String cr
     }
 
     /**
-     * The terms of the hybrid covariance, all in the supine image frame, 3×3 row-major (mm²):
-     * Σ = markingWeight · marking + registrationSdMm² I + mechanicsWeight · mechanics.
+     * The terms of the hybrid covariance, all in the supine image frame (mm²):
+     * Σ = markingWeight · marking + (registrationSdMm² + correctionWeight · |correction|² / 3) I.
      *
      * @param markingMm2        lesion-marking error propagated through the mechanics map (J Σ Jᵀ), rotated
-     *                          into the supine frame
+     *                          into the supine frame, 3×3 row-major (mm²)
      * @param markingWeight     1 when the centroid is the mark or its intensity-weighted refinement, 0 when
      *                          it was refined on a lesion label
      * @param registrationSdMm  isotropic SD of the registration's own error (mm)
-     * @param mechanicsMm2      the mechanics-only covariance in the supine frame (sample spread + marking term)
-     * @param mechanicsWeight   share of it kept after the registration
+     * @param correctionMm      the registration's correction at the lesion: hybrid minus mechanics-only
+     *                          prediction, supine frame (mm)
+     * @param correctionWeight  expected squared residual error per squared correction (dimensionless)
      */
     public record CovarianceTerms(double[] markingMm2, double markingWeight, double registrationSdMm,
-                                  double[] mechanicsMm2, double mechanicsWeight) {
+                                  double[] correctionMm, double correctionWeight) {
     }
 
     /**

@@ -288,10 +288,11 @@ public final class Planner {
                 double[] xh = reg.hybridPoint(x0);
                 // Hybrid covariance (docs/planner.md, Uncertainty): the marking term only when the centroid was
                 // not refined on a lesion label (a label centroid carries no hand-marking error), the
-                // registration's own error, and a share of the mechanics-only covariance of its start.
+                // registration's own error, and an isotropic error growing with the correction the registration
+                // made to its mechanical start at the lesion.
                 PlanResult.CovarianceTerms terms = covMs == null ? null : new PlanResult.CovarianceTerms(
                         reg.rotateCovariance(markCov), li.mark.label() != null ? 0 : 1, c.priors().registrationSdMm(),
-                        covMs, SupineStage.HYBRID_START_WEIGHT);
+                        diff(xh, xms), SupineStage.HYBRID_CORRECTION_WEIGHT);
                 preds.add(prediction(PlanResult.HYBRID, PlanResult.FRAME_SUPINE, x0, xh, terms,
                         describe(li.side, xh, reg.hybridPoint(nip), surfaces, supNodesS), err(truthS, xh), ellSupine));
                 double[] xr = reg.registrationOnlyPoint(x0);
@@ -395,10 +396,16 @@ public final class Planner {
                 p.covarianceMm2(), p.ellipsoid68(), p.ellipsoid95(), p.descriptors(), null, err, terms);
     }
 
-    /** Σ = markingWeight · marking + registrationSdMm² I + mechanicsWeight · mechanics (mm²). */
+    /** Σ = markingWeight · marking + (registrationSdMm² + correctionWeight · |correction|² / 3) I (mm²). */
     static double[] covariance(PlanResult.CovarianceTerms t) {
-        return Covariance3.add(Covariance3.add(scale(t.markingMm2(), t.markingWeight()),
-                Covariance3.isotropic(t.registrationSdMm())), scale(t.mechanicsMm2(), t.mechanicsWeight()));
+        double[] d = t.correctionMm();
+        double v = t.registrationSdMm() * t.registrationSdMm()
+                + t.correctionWeight() * (d[0] * d[0] + d[1] * d[1] + d[2] * d[2]) / 3;
+        double[] s = scale(t.markingMm2(), t.markingWeight());
+        s[0] += v;
+        s[4] += v;
+        s[8] += v;
+        return s;
     }
 
     private static Double err(double[] truth, double[] x) {

@@ -42,11 +42,15 @@ import org.turnmark.registration.volume.Volume;
 final class SupineStage {
 
     /**
-     * Share of the mechanics-only covariance kept in the hybrid covariance: the registration corrects
-     * most of the error of its mechanical start, not all of it (an assumption checked by the
-     * calibration benchmark; docs/planner.md).
+     * Hybrid covariance: expected squared residual error per squared correction, i.e. the isotropic
+     * variance c · |δ|² / 3 added for a registration that moved the lesion by δ from its mechanical start
+     * (docs/planner.md, Uncertainty). Fitted by maximum likelihood together with
+     * {@link CaseFileReader#DEFAULT_REGISTRATION_SD_MM} on the calibration run of 2026-12-02
+     * (BenchCalibration, priors-drawn phantoms, 8 samples, 8 mm elements, code fa9c213): ML 0.324 (SE
+     * 0.137), fitted on seeds 1–24 (19 lesions), checked on seeds 25–48 (22 lesions) and 49–72;
+     * docs/benchmarks.md, "Calibration of the 95 % ellipsoid".
      */
-    static final double HYBRID_START_WEIGHT = 0.25;
+    static final double HYBRID_CORRECTION_WEIGHT = 0.32;
     /** Fixed-point iterations and tolerance (mm) for inverting a displacement field at a point. */
     static final int INVERSE_ITERATIONS = 100;
     static final double INVERSE_TOLERANCE_MM = 0.01;

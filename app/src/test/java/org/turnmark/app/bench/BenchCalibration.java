@@ -80,7 +80,8 @@ public final class BenchCalibration {
      */
     record Row(long seed, String lesion, String method, double[] errorMm, double errorNormMm, Double d2,
                Boolean inside68, Boolean inside95, double[] semiAxes95Mm, int samplesOk, int samplesRequested,
-               double planSeconds, double[] covarianceMm2, PlanResult.CovarianceTerms terms, String refinement) {
+               double planSeconds, double[] covarianceMm2, PlanResult.CovarianceTerms terms,
+               double[] mechanicsSupineMm2, String refinement) {
     }
 
     /** Unique entries of a symmetric 3×3 (row-major) in the order the CSV names them. */
@@ -203,6 +204,12 @@ public final class BenchCalibration {
         int ok = r.uncertainty().completed();
         List<Row> rows = new ArrayList<>();
         for (PlanResult.LesionResult l : r.lesions()) {
+            double[] mechanicsSupine = null;
+            for (PlanResult.Prediction p : l.predictions()) {
+                if (PlanResult.MECHANICS.equals(p.method()) && PlanResult.FRAME_SUPINE.equals(p.frame())) {
+                    mechanicsSupine = p.covarianceMm2();
+                }
+            }
             double[] t = truth.get(l.id());
             if (t == null) {
                 throw new IllegalStateException("case has no true supine centroid for lesion " + l.id());
@@ -228,7 +235,8 @@ public final class BenchCalibration {
                     axes = p.ellipsoid95() != null ? p.ellipsoid95().semiAxesMm() : null;
                 }
                 rows.add(new Row(seed, l.id(), method, e, norm, d2, in68, in95, axes, ok, requested, planSeconds,
-                        p.covarianceMm2(), p.covarianceTerms(), l.refinement()));
+                        p.covarianceMm2(), p.covarianceTerms(), p.covarianceTerms() == null ? null : mechanicsSupine,
+                        l.refinement()));
             }
         }
         return rows;
@@ -348,8 +356,9 @@ public final class BenchCalibration {
         StringBuilder b = new StringBuilder();
         b.append("# ").append(ResearchUse.SHORT).append('\n');
         b.append("# errors (truth - prediction) and covariances in the supine image frame, world RAS+ mm / mm2; "
-                + "cov_*: the prediction's covariance; hyb_marking_*, hyb_mechanics_*, hyb_registration_sd_mm: the "
-                + "hybrid covariance terms (cov = marking_weight * marking + sd^2 I + mechanics_weight * mechanics)\n");
+                + "cov_*: the prediction's covariance; hybrid rows: hyb_marking_* (marking term), hyb_mechanics_* "
+                + "(mechanics-only covariance), hyb_registration_sd_mm; cov = marking_weight * marking + (sd^2 + "
+                + "correction_weight * |hybrid - mechanics-only position|^2 / 3) I\n");
         b.append("seed,lesion,method,error_mm,error_x_mm,error_y_mm,error_z_mm,d2,inside_68,inside_95,"
                 + "semi_axis95_1_mm,semi_axis95_2_mm,semi_axis95_3_mm,samples_ok,samples_requested,plan_s");
         for (String prefix : new String[] {"cov_", "hyb_marking_", "hyb_mechanics_"}) {
@@ -357,7 +366,7 @@ public final class BenchCalibration {
                 b.append(',').append(prefix).append(n).append("_mm2");
             }
         }
-        b.append(",hyb_registration_sd_mm,hyb_marking_weight,hyb_mechanics_weight,centroid_refined_on_label\n");
+        b.append(",hyb_registration_sd_mm,hyb_marking_weight,hyb_correction_weight,centroid_refined_on_label\n");
         for (Row r : rows) {
             b.append(r.seed()).append(',').append(r.lesion()).append(',').append(r.method()).append(',')
                     .append(num(r.errorNormMm())).append(',').append(num(r.errorMm()[0])).append(',')
@@ -372,14 +381,14 @@ public final class BenchCalibration {
                     .append(num(r.planSeconds()));
             PlanResult.CovarianceTerms t = r.terms();
             for (double[] m : new double[][] {r.covarianceMm2(), t == null ? null : t.markingMm2(),
-                    t == null ? null : t.mechanicsMm2()}) {
+                    r.mechanicsSupineMm2()}) {
                 for (int k : SYMMETRIC) {
                     b.append(',').append(m == null ? "" : num(m[k]));
                 }
             }
             b.append(',').append(t == null ? "" : num(t.registrationSdMm())).append(',')
                     .append(t == null ? "" : num(t.markingWeight())).append(',')
-                    .append(t == null ? "" : num(t.mechanicsWeight())).append(',')
+                    .append(t == null ? "" : num(t.correctionWeight())).append(',')
                     .append(r.refinement() != null && r.refinement().startsWith("centroid of label")).append('\n');
         }
         Path abs = csv.toAbsolutePath();

@@ -26,17 +26,19 @@ import org.turnmark.geom.ResearchUse;
  * docs/benchmarks.md, "Calibration of the 95 % ellipsoid").
  *
  * <p>Model (docs/planner.md, Uncertainty): for lesion i the hybrid error e_i (truth − prediction, supine
- * frame, mm) is taken as Gaussian N(0, Σ_i) with Σ_i = a_i K_i + s² I + w M_i: K_i the lesion-marking term
- * and a_i its weight as the plan used it (0 for a centroid refined on a lesion label), M_i the
- * mechanics-only covariance in the supine frame, s the registration SD (mm) and w the share of the
- * mechanics covariance kept. The fit maximises the Gaussian log-likelihood
+ * frame, mm) is taken as Gaussian N(0, Σ_i) with Σ_i = a_i K_i + s² I + w G_i: K_i the lesion-marking term
+ * and a_i its weight as the plan used it (0 for a centroid refined on a lesion label), s the registration
+ * SD (mm) and G_i a per-lesion shape with weight w: {@link Shape#CORRECTION} (the planner's model) G_i =
+ * |δ_i|²/3 I with δ_i the hybrid minus the mechanics-only prediction (the registration's correction at the
+ * lesion; from the CSV, δ = e_mechanics − e_hybrid), or {@link Shape#MECHANICS} G_i = the mechanics-only
+ * covariance (the first model tried). The fit maximises the Gaussian log-likelihood
  * −½ Σ_i (log det Σ_i + e_iᵀ Σ_i⁻¹ e_i) over s &gt; 0 and w ≥ 0: for each w the profile over log s by Brent's
  * method, w on a grid and then by Brent's method around the best grid point. Standard errors from the
  * numerical Hessian of the negative log-likelihood (observed information) at the optimum.
  *
  * <pre>
  * java -cp app/target/turnmark.jar:app/target/test-classes org.turnmark.app.bench.BenchCalibrationFit \
- *   --csv docs/calibration-hybrid-2026-12-02.csv --fit 1-24 --check 25-48 [--planner-sd-mm S --planner-weight W]
+ *   --csv FILE.csv --fit 1-24 --check 25-48 [--shape correction|mechanics] [--planner-sd-mm S --planner-weight W]
  * </pre>
  */
 public final class BenchCalibrationFit {
@@ -44,7 +46,7 @@ public final class BenchCalibrationFit {
     /** Search range of the registration SD s (mm): below 0.01 mm is below any voxel, above 20 mm no plan. */
     static final double MIN_SD_MM = 0.01;
     static final double MAX_SD_MM = 20;
-    /** Search range of the mechanics weight w, and the grid step over it before Brent's refinement. */
+    /** Search range of the shape weight w, and the grid step over it before Brent's refinement. */
     static final double MAX_WEIGHT = 2;
     static final double WEIGHT_STEP = 0.005;
     /** Brent tolerances (relative, absolute) on log s and on w: far below what the data can resolve. */
@@ -62,28 +64,36 @@ public final class BenchCalibrationFit {
      * @param errorMm      e = truth − prediction (mm)
      * @param markingMm2   K, 3×3 row-major (mm²)
      * @param markingWeight a, as the plan used it
-     * @param mechanicsMm2 M, 3×3 row-major (mm²)
+     * @param shapeMm2     G, 3×3 row-major (mm²)
      */
-    record Case(long seed, double[] errorMm, double[] markingMm2, double markingWeight, double[] mechanicsMm2) {
+    record Case(long seed, double[] errorMm, double[] markingMm2, double markingWeight, double[] shapeMm2) {
+    }
+
+    /** The per-lesion shape G of the weighted term. */
+    enum Shape {
+        /** ‖δ‖²/3 I, δ = hybrid − mechanics-only prediction (the planner's model). */
+        CORRECTION,
+        /** The mechanics-only covariance in the supine frame. */
+        MECHANICS
     }
 
     /**
      * Fitted parameters.
      *
      * @param registrationSdMm s (mm)
-     * @param mechanicsWeight  w
+     * @param weight           w
      * @param sdSeMm           standard error of s (mm), NaN when w is on its bound
      * @param weightSe         standard error of w, NaN when w is on its bound
      * @param negLogLik        ½ Σ (log det Σ + d²) at the optimum (constant 3/2 log 2π per case omitted)
      */
-    record Fit(double registrationSdMm, double mechanicsWeight, double sdSeMm, double weightSe, double negLogLik) {
+    record Fit(double registrationSdMm, double weight, double sdSeMm, double weightSe, double negLogLik) {
     }
 
-    /** Σ_i = a K + s² I + w M (mm²). */
+    /** Σ_i = a K + s² I + w G (mm²). */
     static double[] covariance(Case c, double sdMm, double weight) {
         double[] s = new double[9];
         for (int k = 0; k < 9; k++) {
-            s[k] = c.markingWeight() * c.markingMm2()[k] + weight * c.mechanicsMm2()[k];
+            s[k] = c.markingWeight() * c.markingMm2()[k] + weight * c.shapeMm2()[k];
         }
         s[0] += sdMm * sdMm;
         s[4] += sdMm * sdMm;
@@ -105,7 +115,7 @@ public final class BenchCalibrationFit {
         return 0.5 * sum;
     }
 
-    /** ML registration SD for a fixed mechanics weight (Brent on log s). */
+    /** ML registration SD for a fixed shape weight (Brent on log s). */
     static double profileSd(List<Case> cases, double weight) {
         BrentOptimizer opt = new BrentOptimizer(REL_TOL, ABS_TOL);
         return Math.exp(opt.optimize(new MaxEval(MAX_EVAL), GoalType.MINIMIZE,
@@ -179,10 +189,14 @@ public final class BenchCalibrationFit {
         return new Check(cases.size(), in68, in95, cases.isEmpty() ? Double.NaN : sum / cases.size());
     }
 
-    /** Reads the hybrid rows of a calibration CSV (lines starting with '#' skipped). */
-    static List<Case> read(Path csv) throws IOException {
+    /**
+     * Reads the hybrid rows of a calibration CSV (lines starting with '#' skipped); each needs the
+     * mechanics-only (supine frame) row of the same seed and lesion before it.
+     */
+    static List<Case> read(Path csv, Shape shape) throws IOException {
         List<String> lines = Files.readAllLines(csv, StandardCharsets.UTF_8);
         Map<String, Integer> col = null;
+        Map<String, double[]> mechanicsError = new HashMap<>();
         List<Case> out = new ArrayList<>();
         for (int ln = 0; ln < lines.size(); ln++) {
             String line = lines.get(ln);
@@ -195,7 +209,7 @@ public final class BenchCalibrationFit {
                 for (int i = 0; i < f.length; i++) {
                     col.put(f[i], i);
                 }
-                for (String need : new String[] {"seed", "method", "error_x_mm", "hyb_marking_xx_mm2",
+                for (String need : new String[] {"seed", "lesion", "method", "error_x_mm", "hyb_marking_xx_mm2",
                         "hyb_mechanics_xx_mm2", "hyb_marking_weight"}) {
                     if (!col.containsKey(need)) {
                         throw new IOException(csv + ": header has no column '" + need + "' (a CSV of BenchCalibration "
@@ -204,13 +218,32 @@ public final class BenchCalibrationFit {
                 }
                 continue;
             }
+            String key = f[col.get("seed")] + "/" + f[col.get("lesion")];
+            if (BenchCalibration.MECHANICS_SUPINE.equals(f[col.get("method")])) {
+                mechanicsError.put(key, new double[] {num(f, col, "error_x_mm"), num(f, col, "error_y_mm"),
+                        num(f, col, "error_z_mm")});
+            }
             if (!PlanResult.HYBRID.equals(f[col.get("method")]) || f[col.get("hyb_marking_xx_mm2")].isEmpty()) {
                 continue;
             }
             try {
                 double[] e = {num(f, col, "error_x_mm"), num(f, col, "error_y_mm"), num(f, col, "error_z_mm")};
+                double[] g;
+                if (shape == Shape.MECHANICS) {
+                    g = symmetric(f, col, "hyb_mechanics_");
+                } else {
+                    double[] em = mechanicsError.get(key);
+                    if (em == null) {
+                        throw new IllegalArgumentException("no mechanics-only row before the hybrid row of " + key);
+                    }
+                    double d2 = 0;
+                    for (int a = 0; a < 3; a++) {
+                        d2 += (em[a] - e[a]) * (em[a] - e[a]);
+                    }
+                    g = new double[] {d2 / 3, 0, 0, 0, d2 / 3, 0, 0, 0, d2 / 3};
+                }
                 out.add(new Case(Long.parseLong(f[col.get("seed")]), e, symmetric(f, col, "hyb_marking_"),
-                        num(f, col, "hyb_marking_weight"), symmetric(f, col, "hyb_mechanics_")));
+                        num(f, col, "hyb_marking_weight"), g));
             } catch (RuntimeException ex) {
                 throw new IOException(csv + " line " + (ln + 1) + ": " + ex.getMessage(), ex);
             }
@@ -315,76 +348,121 @@ public final class BenchCalibrationFit {
                 100 * b.upper(), c.meanD2());
     }
 
+    /** All cases of the CSV files, in order. */
+    private static List<Case> readAll(List<Path> csvs, Shape shape) throws IOException {
+        List<Case> out = new ArrayList<>();
+        for (Path p : csvs) {
+            out.addAll(read(p, shape));
+        }
+        return out;
+    }
+
+    private static List<double[]> readAllD2(List<Path> csvs) throws IOException {
+        List<double[]> out = new ArrayList<>();
+        for (Path p : csvs) {
+            out.addAll(readD2(p, BenchCalibration.MECHANICS_SUPINE));
+        }
+        return out;
+    }
+
+    private static String name(long[] r, String role) {
+        return "seeds " + r[0] + "–" + r[1] + " (" + role + ")";
+    }
+
     public static void main(String[] args) throws IOException {
-        Path csv = null;
+        List<Path> csvs = new ArrayList<>();
         long[] fitRange = null;
-        long[] checkRange = null;
+        List<long[]> checkRanges = new ArrayList<>();
+        Shape shape = Shape.CORRECTION;
         double oldSd = 1.5;
         double oldWeight = 0.25;
         Double plannerSd = null;
         Double plannerWeight = null;
         for (int i = 0; i + 1 < args.length; i += 2) {
+            String v = args[i + 1];
             switch (args[i]) {
-                case "--csv" -> csv = Path.of(args[i + 1]);
-                case "--fit" -> fitRange = range(args[i + 1]);
-                case "--check" -> checkRange = range(args[i + 1]);
-                case "--compare-sd-mm" -> oldSd = Double.parseDouble(args[i + 1]);
-                case "--compare-weight" -> oldWeight = Double.parseDouble(args[i + 1]);
-                case "--planner-sd-mm" -> plannerSd = Double.parseDouble(args[i + 1]);
-                case "--planner-weight" -> plannerWeight = Double.parseDouble(args[i + 1]);
+                case "--csv" -> {
+                    for (String c : v.split(",")) {
+                        csvs.add(Path.of(c));
+                    }
+                }
+                case "--fit" -> fitRange = range(v);
+                case "--check" -> {
+                    for (String c : v.split(",")) {
+                        checkRanges.add(range(c));
+                    }
+                }
+                case "--shape" -> shape = Shape.valueOf(v.toUpperCase(Locale.ROOT));
+                case "--compare-sd-mm" -> oldSd = Double.parseDouble(v);
+                case "--compare-weight" -> oldWeight = Double.parseDouble(v);
+                case "--planner-sd-mm" -> plannerSd = Double.parseDouble(v);
+                case "--planner-weight" -> plannerWeight = Double.parseDouble(v);
                 default -> throw new IllegalArgumentException("unknown option " + args[i]);
             }
         }
-        if (csv == null || fitRange == null || checkRange == null) {
-            System.err.println("usage: BenchCalibrationFit --csv FILE --fit FROM-TO --check FROM-TO "
-                    + "[--compare-sd-mm 1.5 --compare-weight 0.25] [--planner-sd-mm S --planner-weight W]");
+        if (csvs.isEmpty() || fitRange == null || checkRanges.isEmpty()) {
+            System.err.println("usage: BenchCalibrationFit --csv FILE[,FILE...] --fit FROM-TO --check FROM-TO[,FROM-TO...] "
+                    + "[--shape correction|mechanics] [--compare-sd-mm 1.5 --compare-weight 0.25] "
+                    + "[--planner-sd-mm S --planner-weight W]");
             System.exit(2);
             return;
         }
-        if (fitRange[1] >= checkRange[0] && checkRange[1] >= fitRange[0]) {
-            throw new IllegalArgumentException("fit and check seed ranges overlap");
-        }
-        List<Case> all = read(csv);
-        List<Case> fitSet = select(all, fitRange);
-        List<Case> checkSet = select(all, checkRange);
-        Fit f = fit(fitSet);
-        String fitName = "seeds " + fitRange[0] + "–" + fitRange[1] + " (fit)";
-        String checkName = "seeds " + checkRange[0] + "–" + checkRange[1] + " (held out)";
-        System.out.println("# " + ResearchUse.SHORT);
-        System.out.printf(Locale.ROOT, "%s: %d hybrid lesions from %s; Σ = a K + s² I + w M%n", fitName, fitSet.size(),
-                csv);
-        System.out.printf(Locale.ROOT, "ML fit: s = %.3f mm (SE %.3f mm), w = %.4f (SE %.4f); −log L = %.3f "
-                + "(+ 3/2 log 2π per lesion)%n", f.registrationSdMm(), f.sdSeMm(), f.mechanicsWeight(), f.weightSe(),
-                f.negLogLik());
-        Fit s0 = new Fit(profileSd(fitSet, 0), 0, Double.NaN, Double.NaN, 0);
-        System.out.printf(Locale.ROOT, "for comparison, w = 0: s = %.3f mm, −log L = %.3f%n", s0.registrationSdMm(),
-                negLogLik(fitSet, s0.registrationSdMm(), 0));
-        System.out.println();
-        System.out.println("| hybrid covariance | seeds | lesions | inside 68 % | 68 % coverage (95 % CI) | inside 95 % "
-                + "| 95 % coverage (95 % CI) | mean d² (3 if calibrated) |");
-        System.out.println("|---|---|---|---|---|---|---|---|");
-        String fitted = String.format(Locale.ROOT, "fitted: s = %.2f mm, w = %.3f", f.registrationSdMm(),
-                f.mechanicsWeight());
-        String old = String.format(Locale.ROOT, "previous: s = %.2f mm, w = %.3f, marking term always", oldSd,
-                oldWeight);
-        List<double[]> mech = readD2(csv, BenchCalibration.MECHANICS_SUPINE);
-        System.out.println(row("mechanics-only (supine frame; unchanged)", fitName, checkD2(mech, fitRange)));
-        System.out.println(row("mechanics-only (supine frame; unchanged)", checkName, checkD2(mech, checkRange)));
-        System.out.println(row(fitted, fitName, check(fitSet, f.registrationSdMm(), f.mechanicsWeight())));
-        System.out.println(row(fitted, checkName, check(checkSet, f.registrationSdMm(), f.mechanicsWeight())));
-        if (plannerSd != null && plannerWeight != null) {
-            // The planner's defaults (the fit rounded), marking weight as the plans used it.
-            String pl = String.format(Locale.ROOT, "planner defaults: s = %s mm, w = %s", plannerSd, plannerWeight);
-            System.out.println(row(pl, fitName, check(fitSet, plannerSd, plannerWeight)));
-            System.out.println(row(pl, checkName, check(checkSet, plannerSd, plannerWeight)));
-        }
-        for (String[] set : new String[][] {{fitName}, {checkName}}) {
-            List<Case> cs = set[0].equals(fitName) ? fitSet : checkSet;
-            List<Case> withMarking = new ArrayList<>();
-            for (Case c : cs) {
-                withMarking.add(new Case(c.seed(), c.errorMm(), c.markingMm2(), 1, c.mechanicsMm2()));
+        for (long[] c : checkRanges) {
+            if (fitRange[1] >= c[0] && c[1] >= fitRange[0]) {
+                throw new IllegalArgumentException("fit and check seed ranges overlap");
             }
-            System.out.println(row(old, set[0], check(withMarking, oldSd, oldWeight)));
+        }
+        List<Case> all = readAll(csvs, shape);
+        List<Case> allM = readAll(csvs, Shape.MECHANICS);
+        List<Case> fitSet = select(all, fitRange);
+        Fit f = fit(fitSet);
+        Fit fm = fit(select(allM, fitRange));
+        String fitName = name(fitRange, "fit");
+        System.out.println("# " + ResearchUse.SHORT);
+        System.out.printf(Locale.ROOT, "%s: %d hybrid lesions from %s%n", fitName, fitSet.size(), csvs);
+        for (Object[] m : new Object[][] {{Shape.CORRECTION, shape == Shape.CORRECTION ? f : fit(select(
+                readAll(csvs, Shape.CORRECTION), fitRange))}, {Shape.MECHANICS, fm}}) {
+            Fit x = (Fit) m[1];
+            System.out.printf(Locale.ROOT, "ML fit, G = %s: s = %.3f mm (SE %.3f mm), w = %.4f (SE %.4f); −log L = %.3f "
+                            + "(+ 3/2 log 2π per lesion), AIC = %.2f%n", m[0] == Shape.CORRECTION ? "‖δ‖²/3 I"
+                            : "mechanics-only covariance", x.registrationSdMm(), x.sdSeMm(), x.weight(), x.weightSe(),
+                    x.negLogLik(), 2 * x.negLogLik() + 4);
+        }
+        double sIso = profileSd(fitSet, 0);
+        System.out.printf(Locale.ROOT, "ML fit, w = 0: s = %.3f mm, −log L = %.3f, AIC = %.2f%n", sIso,
+                negLogLik(fitSet, sIso, 0), 2 * negLogLik(fitSet, sIso, 0) + 2);
+        System.out.println();
+        System.out.println("| method / hybrid covariance | seeds | lesions | inside 68 % | 68 % coverage (95 % CI) "
+                + "| inside 95 % | 95 % coverage (95 % CI) | mean d² (3 if calibrated) |");
+        System.out.println("|---|---|---|---|---|---|---|---|");
+        List<long[]> sets = new ArrayList<>();
+        sets.add(fitRange);
+        sets.addAll(checkRanges);
+        List<double[]> mech = readAllD2(csvs);
+        String shapeName = shape == Shape.CORRECTION ? "‖δ‖²/3 I" : "Σ_m";
+        for (int k = 0; k < sets.size(); k++) {
+            long[] r = sets.get(k);
+            String n = name(r, k == 0 ? "fit" : "held out");
+            List<Case> cs = select(all, r);
+            List<Case> csM = select(allM, r);
+            System.out.println(row("mechanics-only (supine frame; unchanged)", n, checkD2(mech, r)));
+            List<Case> withMarking = new ArrayList<>();
+            for (Case c : csM) {
+                withMarking.add(new Case(c.seed(), c.errorMm(), c.markingMm2(), 1, c.shapeMm2()));
+            }
+            System.out.println(row(String.format(Locale.ROOT, "hybrid, previous: K + %.2f² I + %.3f Σ_m", oldSd,
+                    oldWeight), n, check(withMarking, oldSd, oldWeight)));
+            System.out.println(row(String.format(Locale.ROOT, "hybrid, ML fit: a K + %.3f² I + %.4f Σ_m",
+                    fm.registrationSdMm(), fm.weight()), n, check(csM, fm.registrationSdMm(), fm.weight())));
+            if (shape == Shape.CORRECTION) {
+                System.out.println(row(String.format(Locale.ROOT, "hybrid, ML fit: a K + (%.3f² + %.4f ‖δ‖²/3) I",
+                        f.registrationSdMm(), f.weight()), n, check(cs, f.registrationSdMm(), f.weight())));
+            }
+            if (plannerSd != null && plannerWeight != null) {
+                // The planner's defaults (the fit rounded), marking weight as the plans used it.
+                System.out.println(row(String.format(Locale.ROOT, "hybrid, planner defaults: s = %s mm, w = %s (G = %s)",
+                        plannerSd, plannerWeight, shapeName), n, check(cs, plannerSd, plannerWeight)));
+            }
         }
     }
 }

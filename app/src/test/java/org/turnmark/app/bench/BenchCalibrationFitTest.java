@@ -33,6 +33,8 @@ class BenchCalibrationFitTest {
      * d² moves in proportion to the parameter error; 1e-4 leaves a wide margin.
      */
     private static final double STATIONARY_TOL = 1e-4;
+    /** 25 / 3 from a sum of three squares divided by 3: a few units in the last place. */
+    private static final double SUM_ULPS = 1e-12;
     /** Brent tolerances are 1e-10; the closed form is matched far inside this. */
     private static final double CLOSED_FORM_REL_TOL = 1e-6;
 
@@ -81,13 +83,13 @@ class BenchCalibrationFitTest {
         assertTrue(f.sdSeMm() < MAX_RELATIVE_SE * TRUE_SD_MM, "SE of s " + f.sdSeMm());
         assertTrue(f.weightSe() < MAX_RELATIVE_SE * TRUE_WEIGHT, "SE of w " + f.weightSe());
         assertEquals(TRUE_SD_MM, f.registrationSdMm(), SE_BAND * f.sdSeMm());
-        assertEquals(TRUE_WEIGHT, f.mechanicsWeight(), SE_BAND * f.weightSe());
+        assertEquals(TRUE_WEIGHT, f.weight(), SE_BAND * f.weightSe());
         // The maximum likelihood is at least as high as at the true parameters.
         assertTrue(f.negLogLik() <= BenchCalibrationFit.negLogLik(cases, TRUE_SD_MM, TRUE_WEIGHT));
         // Σ = s² I + w M is linear in (s², w), so scaling both by c scales Σ by c; the likelihood's derivative
         // along that direction vanishes at an interior optimum, which gives mean d² = 3 exactly on the fit data
         // (closed form: d/dc of Σ (3 log c + d²/c) = 0 at c = 1).
-        assertEquals(3, BenchCalibrationFit.check(cases, f.registrationSdMm(), f.mechanicsWeight()).meanD2(),
+        assertEquals(3, BenchCalibrationFit.check(cases, f.registrationSdMm(), f.weight()).meanD2(),
                 STATIONARY_TOL);
     }
 
@@ -100,11 +102,11 @@ class BenchCalibrationFitTest {
             }
         }
         b.append(",hyb_marking_weight\n");
-        b.append("3,L1,mechanics-only (supine frame),1,2,3,,,,,,,,,,,,,\n");
+        b.append("3,L1,mechanics-only (supine frame),4,6,3,,,,,,,,,,,,,\n");
         b.append("3,L1,hybrid,1,2,3,1,2,3,0.1,0.2,0.3,10,20,30,1,2,3,0\n");
         Path csv = dir.resolve("c.csv");
         Files.writeString(csv, b);
-        List<BenchCalibrationFit.Case> cases = BenchCalibrationFit.read(csv);
+        List<BenchCalibrationFit.Case> cases = BenchCalibrationFit.read(csv, BenchCalibrationFit.Shape.MECHANICS);
         assertEquals(1, cases.size());
         BenchCalibrationFit.Case c = cases.get(0);
         assertEquals(3, c.seed());
@@ -119,8 +121,14 @@ class BenchCalibrationFitTest {
         assertEquals(0.2, k[6]);
         assertEquals(0.3, k[5]);
         assertEquals(0.3, k[7]);
-        assertEquals(20, c.mechanicsMm2()[4]);
-        assertEquals(3, c.mechanicsMm2()[7]);
+        assertEquals(20, c.shapeMm2()[4]);
+        assertEquals(3, c.shapeMm2()[7]);
+        // Correction shape: δ = e_mechanics − e_hybrid = (3, 4, 0) mm, |δ|² / 3 = 25 / 3 mm² on the diagonal.
+        double[] g = BenchCalibrationFit.read(csv, BenchCalibrationFit.Shape.CORRECTION).get(0).shapeMm2();
+        assertEquals(25.0 / 3, g[0], SUM_ULPS);
+        assertEquals(25.0 / 3, g[4], SUM_ULPS);
+        assertEquals(25.0 / 3, g[8], SUM_ULPS);
+        assertEquals(0, g[1]);
     }
 
     /** A random rotation (QR-free: Gram–Schmidt of three Gaussian vectors), row-major. */

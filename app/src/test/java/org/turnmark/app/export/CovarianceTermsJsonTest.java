@@ -21,9 +21,9 @@ class CovarianceTermsJsonTest {
         PlanResult.LesionResult l = plan.lesions().get(0);
         PlanResult.Prediction h = l.predictions().get(1);
         PlanResult.CovarianceTerms terms = new PlanResult.CovarianceTerms(new double[] {2, 0, 0, 0, 2, 0, 0, 0, 2}, 0,
-                1.25, new double[] {40, 3, 0, 3, 5, 0, 0, 0, 4}, 0.125);
+                1.25, new double[] {3, 0, 0}, 0.25);
         PlanResult.Prediction withTerms = new PlanResult.Prediction(h.method(), h.frame(), h.positionRasMm(),
-                h.displacementMm(), new double[] {6.5625, 0.375, 0, 0.375, 2.1875, 0, 0, 0, 2.0625}, null, null, null,
+                h.displacementMm(), new double[] {2.3125, 0, 0, 0, 2.3125, 0, 0, 0, 2.3125}, null, null, null,
                 null, 1.5, terms);
         PlanResult.LesionResult l2 = new PlanResult.LesionResult(l.id(), l.side(), l.markedProneRasMm(),
                 l.proneRasMm(), l.refinement(), l.proneDescriptors(), List.of(l.predictions().get(0), withTerms),
@@ -38,9 +38,9 @@ class CovarianceTermsJsonTest {
         assertEquals(PlanJson.toJson(p2), PlanJson.toJson(back));
         PlanResult.CovarianceTerms t = back.lesions().get(0).predictions().get(1).covarianceTerms();
         assertArrayEquals(terms.markingMm2(), t.markingMm2(), 0.0);
-        assertArrayEquals(terms.mechanicsMm2(), t.mechanicsMm2(), 0.0);
+        assertArrayEquals(terms.correctionMm(), t.correctionMm(), 0.0);
         assertEquals(1.25, t.registrationSdMm(), 0.0);
-        assertEquals(0.125, t.mechanicsWeight(), 0.0);
+        assertEquals(0.25, t.correctionWeight(), 0.0);
         assertEquals(0, t.markingWeight(), 0.0);
         // A prediction without terms writes none and reads back as null.
         assertNull(back.lesions().get(0).predictions().get(0).covarianceTerms());
