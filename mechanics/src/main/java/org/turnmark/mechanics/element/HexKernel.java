@@ -34,9 +34,12 @@ public final class HexKernel {
     private final double[] fg = new double[72];   // F per Gauss point, row-major
     private final double[] hg = new double[72];   // F⁻ᵀ per Gauss point
     private final double[] jg = new double[8];
+    private final double[] cg = new double[8];    // μ J^(−2/3) per Gauss point
+    private final double[] i1g = new double[8];   // I₁ per Gauss point
     private final double[] fa = new double[24];   // F n_a
     private final double[] ga = new double[24];   // F⁻ᵀ n_a
     private final double[] d = new double[24];    // ∂v/∂u
+    private final double[] vb = new double[24];   // tt F n_b + gg F⁻ᵀ n_b (tangent scratch)
     private double minDetF;
 
     /** Smallest det F at the Gauss points of the last {@link #evaluate} call. */
@@ -125,7 +128,11 @@ public final class HexKernel {
             double w = wts[8 * e + g];
             double i1 = f00 * f00 + f01 * f01 + f02 * f02 + f10 * f10 + f11 * f11 + f12 * f12
                     + f20 * f20 + f21 * f21 + f22 * f22;
-            energy += w * 0.5 * mu * (Math.pow(j, -2.0 / 3.0) * i1 - 3);
+            double cr = Math.cbrt(j);
+            double jm23 = 1 / (cr * cr);   // J^(−2/3)
+            cg[g] = mu * jm23;
+            i1g[g] = i1;
+            energy += w * 0.5 * mu * (jm23 * i1 - 3);
             if (!md) {
                 energy += w * volumetricEnergy(kappa, j);
             }
@@ -163,9 +170,8 @@ public final class HexKernel {
             double h00 = hg[o], h01 = hg[o + 1], h02 = hg[o + 2];
             double h10 = hg[o + 3], h11 = hg[o + 4], h12 = hg[o + 5];
             double h20 = hg[o + 6], h21 = hg[o + 7], h22 = hg[o + 8];
-            double i1 = f00 * f00 + f01 * f01 + f02 * f02 + f10 * f10 + f11 * f11 + f12 * f12
-                    + f20 * f20 + f21 * f21 + f22 * f22;
-            double c = mu * Math.pow(j, -2.0 / 3.0);
+            double i1 = i1g[g];
+            double c = cg[g];
             // pressure-like coefficient of J F⁻ᵀ in P: U'(J) (Q1) or U'(θ) (mean dilatation)
             double up = md ? pTheta : 0.5 * kappa * (j - 1 / j);
             for (int a = 0; a < 8; a++) {
@@ -206,29 +212,38 @@ public final class HexKernel {
             double tt = -2.0 / 3.0 * wc;
             double gg = 2.0 / 9.0 * i1 * wc + alpha;
             double gt = i1 / 3.0 * wc - beta;
+            // K_ik = nn δ_ik + f_ai (tt g_bk) + g_ai (tt f_bk + gg g_bk) + gt g_bi g_ak, with the
+            // b-factors formed once per node b
+            for (int b = 0; b < 8; b++) {
+                int q = 3 * b;
+                vb[q] = tt * fa[q] + gg * ga[q];
+                vb[q + 1] = tt * fa[q + 1] + gg * ga[q + 1];
+                vb[q + 2] = tt * fa[q + 2] + gg * ga[q + 2];
+            }
             for (int a = 0; a < 8; a++) {
                 double na0 = grad[gb + 3 * a];
                 double na1 = grad[gb + 3 * a + 1];
                 double na2 = grad[gb + 3 * a + 2];
                 double fa0 = fa[3 * a], fa1 = fa[3 * a + 1], fa2 = fa[3 * a + 2];
                 double ga0 = ga[3 * a], ga1 = ga[3 * a + 1], ga2 = ga[3 * a + 2];
+                double ta0 = gt * ga0, ta1 = gt * ga1, ta2 = gt * ga2;
                 for (int b = a; b < 8; b++) {
                     double nn = wc * (na0 * grad[gb + 3 * b] + na1 * grad[gb + 3 * b + 1] + na2 * grad[gb + 3 * b + 2]);
-                    double fb0 = fa[3 * b], fb1 = fa[3 * b + 1], fb2 = fa[3 * b + 2];
+                    double wb0 = tt * ga[3 * b], wb1 = tt * ga[3 * b + 1], wb2 = tt * ga[3 * b + 2];
+                    double vb0 = vb[3 * b], vb1 = vb[3 * b + 1], vb2 = vb[3 * b + 2];
                     double gb0 = ga[3 * b], gb1 = ga[3 * b + 1], gb2 = ga[3 * b + 2];
                     int r0 = 24 * (3 * a) + 3 * b;
                     int r1 = r0 + 24;
                     int r2 = r1 + 24;
-                    // K_ik = nn δ_ik + tt (f_ai g_bk + g_ai f_bk) + gg g_ai g_bk + gt g_bi g_ak
-                    ke[r0] += nn + tt * (fa0 * gb0 + ga0 * fb0) + gg * ga0 * gb0 + gt * gb0 * ga0;
-                    ke[r0 + 1] += tt * (fa0 * gb1 + ga0 * fb1) + gg * ga0 * gb1 + gt * gb0 * ga1;
-                    ke[r0 + 2] += tt * (fa0 * gb2 + ga0 * fb2) + gg * ga0 * gb2 + gt * gb0 * ga2;
-                    ke[r1] += tt * (fa1 * gb0 + ga1 * fb0) + gg * ga1 * gb0 + gt * gb1 * ga0;
-                    ke[r1 + 1] += nn + tt * (fa1 * gb1 + ga1 * fb1) + gg * ga1 * gb1 + gt * gb1 * ga1;
-                    ke[r1 + 2] += tt * (fa1 * gb2 + ga1 * fb2) + gg * ga1 * gb2 + gt * gb1 * ga2;
-                    ke[r2] += tt * (fa2 * gb0 + ga2 * fb0) + gg * ga2 * gb0 + gt * gb2 * ga0;
-                    ke[r2 + 1] += tt * (fa2 * gb1 + ga2 * fb1) + gg * ga2 * gb1 + gt * gb2 * ga1;
-                    ke[r2 + 2] += nn + tt * (fa2 * gb2 + ga2 * fb2) + gg * ga2 * gb2 + gt * gb2 * ga2;
+                    ke[r0] += nn + fa0 * wb0 + ga0 * vb0 + gb0 * ta0;
+                    ke[r0 + 1] += fa0 * wb1 + ga0 * vb1 + gb0 * ta1;
+                    ke[r0 + 2] += fa0 * wb2 + ga0 * vb2 + gb0 * ta2;
+                    ke[r1] += fa1 * wb0 + ga1 * vb0 + gb1 * ta0;
+                    ke[r1 + 1] += nn + fa1 * wb1 + ga1 * vb1 + gb1 * ta1;
+                    ke[r1 + 2] += fa1 * wb2 + ga1 * vb2 + gb1 * ta2;
+                    ke[r2] += fa2 * wb0 + ga2 * vb0 + gb2 * ta0;
+                    ke[r2 + 1] += fa2 * wb1 + ga2 * vb1 + gb2 * ta1;
+                    ke[r2 + 2] += nn + fa2 * wb2 + ga2 * vb2 + gb2 * ta2;
                 }
             }
         }
