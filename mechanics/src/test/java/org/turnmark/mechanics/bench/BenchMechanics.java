@@ -51,7 +51,10 @@ public final class BenchMechanics {
             forward(LinearSolverKind.PCG_BLOCK_JACOBI, 1);
         }
         if (what.equals("reload") || what.equals("all")) {
-            reload(args.length > 1 ? Double.parseDouble(args[1]) : ReferenceStateConfig.defaults().toleranceMm());
+            double tol = args.length > 1 ? Double.parseDouble(args[1]) : ReferenceStateConfig.defaults().toleranceMm();
+            // optional third argument: the largest nodal mismatch when 99 % of the nodes meet the
+            // tolerance (the planner's rule is 0.5 mm and 2 mm); default the strict rule
+            reload(tol, args.length > 2 ? Double.parseDouble(args[2]) : tol);
         }
         System.out.println("load average at end " + Files.readString(Path.of("/proc/loadavg")).trim());
     }
@@ -77,7 +80,7 @@ public final class BenchMechanics {
      * Prone → reference → supine on a half-ellipsoid 180 × 65 × 210 mm at 4 mm elements (≈ 20,000
      * hexahedra); the chest wall slides except a 12 mm rim, which is fixed.
      */
-    private static void reload(double toleranceMm) {
+    private static void reload(double toleranceMm, double maxMismatchMm) {
         double ax = 90;
         double ay = 65;
         double az = 105;
@@ -89,7 +92,7 @@ public final class BenchMechanics {
         long t0 = System.nanoTime();
         ReferenceStateResult ref = ReferenceStateSolver.solve(prone, MaterialTable.DEFAULTS, bc, PRONE, cfg,
                 new ReferenceStateConfig(toleranceMm, ReferenceStateConfig.defaults().maxIterations(),
-                        ReferenceStateConfig.defaults().andersonDepth()), Progress.NONE);
+                        ReferenceStateConfig.defaults().andersonDepth(), maxMismatchMm), Progress.NONE);
         double tRef = (System.nanoTime() - t0) * 1e-9;
         double cRef = cpu() - c0;
         long t1 = System.nanoTime();
@@ -101,8 +104,11 @@ public final class BenchMechanics {
         for (double m : ref.mismatchHistoryMm()) {
             hist.append(String.format("%.3g ", m));
         }
-        System.out.printf("| reference state to %.2f mm (%d forward solves, mismatch mm: %s) | %d | %d | %s | - | %d | %d | %.2f | %.2f | %d |%n",
-                toleranceMm, ref.iterations(), hist.toString().trim(), prone.elementCount(), prone.nodeCount(), cfg.linearSolver(),
+        String rule = maxMismatchMm > toleranceMm
+                ? String.format("%.2f mm for 99 %% of the nodes, all within %.2f mm", toleranceMm, maxMismatchMm)
+                : String.format("%.2f mm", toleranceMm);
+        System.out.printf("| reference state to %s (%d forward solves, mismatch mm: %s) | %d | %d | %s | - | %d | %d | %.2f | %.2f | %d |%n",
+                rule, ref.iterations(), hist.toString().trim(), prone.elementCount(), prone.nodeCount(), cfg.linearSolver(),
                 ref.newtonIterations(), ref.linearIterations(), tRef, cRef, peakMb());
         System.out.printf("| supine reload (max |u| %.1f mm) | %d | %d | %s | %d (%d) | %d | %d | %.2f | %.2f | %d |%n",
                 sup.maxDisplacementMm(), prone.elementCount(), prone.nodeCount(), cfg.linearSolver(), sup.loadSteps(),
