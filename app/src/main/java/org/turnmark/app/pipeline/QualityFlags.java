@@ -55,17 +55,39 @@ final class QualityFlags {
         }
     }
 
-    static void registration(List<PlanResult.QualityFlag> flags, String what, RegistrationResult r) {
+    /**
+     * Similarity and folding of a registration; {@code fromMechanics}: it started from the mechanics
+     * field, whose own folding is then told apart from the residual registration's.
+     */
+    static void registration(List<PlanResult.QualityFlag> flags, String what, RegistrationResult r,
+                             boolean fromMechanics) {
         double change = r.costInitial() == 0 ? 0 : (r.costFinal() - r.costInitial()) / Math.abs(r.costInitial()) * 100;
         flags.add(new PlanResult.QualityFlag(r.improved() ? PlanResult.QualityFlag.OK : PlanResult.QualityFlag.WARNING,
                 what + " similarity", f("%s cost %.4g before, %.4g after (%+.1f %%, lower is better)%s",
                         r.metric(), r.costInitial(), r.costFinal(), change,
                         r.improved() ? "" : "; the registration could not improve on its start")));
-        JacobianStats j = r.jacobian();
-        boolean folds = j.percentNonPositive() > 0;
-        flags.add(new PlanResult.QualityFlag(folds ? PlanResult.QualityFlag.PROBLEM : PlanResult.QualityFlag.OK,
-                what + " folding", f("Jacobian determinant min %.3f, %.3f %% of voxels ≤ 0, SD of log det J %.3f%s",
-                        j.minDet(), j.percentNonPositive(), j.sdLogDet(), folds ? ": the map folds tissue" : "")));
+        flags.add(folding(what, r.jacobian(), fromMechanics ? r.residualJacobian() : null));
+    }
+
+    /**
+     * Folding of a registration's total map and, when it started from the mechanics field
+     * ({@code residual} not null), of its residual part alone, so the reader can tell which part folds.
+     */
+    static PlanResult.QualityFlag folding(String what, JacobianStats total, JacobianStats residual) {
+        boolean folds = total.percentNonPositive() > 0;
+        String text = f("Jacobian determinant min %.3f, %.3f %% of voxels ≤ 0, SD of log det J %.3f",
+                total.minDet(), total.percentNonPositive(), total.sdLogDet());
+        if (residual != null) {
+            text += f("; the residual registration alone: min %.3f, %.3f %% ≤ 0", residual.minDet(),
+                    residual.percentNonPositive());
+        }
+        if (folds) {
+            text += residual != null && residual.percentNonPositive() == 0
+                    ? ": the map folds tissue where its mechanics start folds (the residual registration does not)"
+                    : ": the map folds tissue";
+        }
+        return new PlanResult.QualityFlag(folds ? PlanResult.QualityFlag.PROBLEM : PlanResult.QualityFlag.OK,
+                what + " folding", text);
     }
 
     /**

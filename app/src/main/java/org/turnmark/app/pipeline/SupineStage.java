@@ -140,8 +140,8 @@ final class SupineStage {
         }
 
         void flags(List<PlanResult.QualityFlag> flags) {
-            QualityFlags.registration(flags, "hybrid registration", s.hybridResult);
-            QualityFlags.registration(flags, "registration-only baseline", s.regResult);
+            QualityFlags.registration(flags, "hybrid registration", s.hybridResult, true);
+            QualityFlags.registration(flags, "registration-only baseline", s.regResult, false);
         }
 
         void artifacts(Map<String, PlanArtifacts.Field> fields, Map<String, Volume> warped) {

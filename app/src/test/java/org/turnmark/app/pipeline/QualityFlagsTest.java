@@ -1,0 +1,42 @@
+package org.turnmark.app.pipeline;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import org.junit.jupiter.api.Test;
+import org.turnmark.registration.transform.JacobianStats;
+
+class QualityFlagsTest {
+
+    private static JacobianStats stats(double minDet, double percentNonPositive) {
+        return new JacobianStats(1000, minDet, 1.5, percentNonPositive, 0, 0.1);
+    }
+
+    /** A hybrid map that folds only where its mechanics start folds says so, and is still a problem. */
+    @Test
+    void foldingIsAttributedToTheMechanicsStartWhenTheResidualDoesNotFold() {
+        PlanResult.QualityFlag f = QualityFlags.folding("hybrid registration", stats(-0.08, 0.006), stats(0.4, 0));
+        assertEquals(PlanResult.QualityFlag.PROBLEM, f.severity());
+        assertTrue(f.message().contains("mechanics start folds"), f.message());
+        assertTrue(f.message().contains("residual registration alone: min 0.400"), f.message());
+    }
+
+    /** When the residual registration folds too, the flag does not blame the mechanics start. */
+    @Test
+    void foldingOfTheResidualIsNotAttributedToTheStart() {
+        PlanResult.QualityFlag f = QualityFlags.folding("hybrid registration", stats(-0.08, 0.006), stats(-0.01, 0.002));
+        assertEquals(PlanResult.QualityFlag.PROBLEM, f.severity());
+        assertFalse(f.message().contains("mechanics start"), f.message());
+        assertTrue(f.message().endsWith("the map folds tissue"), f.message());
+    }
+
+    /** No folding: an OK flag; a baseline without a mechanics start reports only its total map. */
+    @Test
+    void noFoldingIsOk() {
+        PlanResult.QualityFlag f = QualityFlags.folding("registration-only baseline", stats(0.42, 0), null);
+        assertEquals(PlanResult.QualityFlag.OK, f.severity());
+        assertFalse(f.message().contains("residual"), f.message());
+        assertFalse(f.message().contains("folds"), f.message());
+    }
+}
