@@ -75,20 +75,11 @@ public final class AutoSegmentation {
         int n = img.length;
         List<String> notes = new ArrayList<>();
         double t = otsu(img, null);
-        boolean[] body = new boolean[n];
-        int count = 0;
-        for (int v = 0; v < n; v++) {
-            body[v] = img[v] > t;
-            if (body[v]) {
-                count++;
-            }
-        }
-        if (count == 0 || count == n) {
+        boolean[] body = bodyMask(prone);
+        if (body == null) {
             throw new PlanInputException("automatic segmentation: the prone image has no contrast between body and "
                     + "background (Otsu threshold " + t + "); give a label image");
         }
-        body = largestComponent(g, body);
-        fillHoles(g, body);
         progress.update("segmentation", 0.3);
 
         byte[] labels = new byte[n];
@@ -186,6 +177,31 @@ public final class AutoSegmentation {
     }
 
     /** Otsu's threshold over the values where {@code mask} is true (all if null). */
+    /**
+     * Body (non-air) voxels of an MR image: Otsu's threshold, the largest connected component, holes
+     * filled; null if the threshold separates nothing (no contrast).
+     */
+    static boolean[] bodyMask(Volume image) {
+        Grid3 g = image.grid();
+        float[] img = image.data();
+        int n = img.length;
+        double t = otsu(img, null);
+        boolean[] body = new boolean[n];
+        int count = 0;
+        for (int v = 0; v < n; v++) {
+            body[v] = img[v] > t;
+            if (body[v]) {
+                count++;
+            }
+        }
+        if (count == 0 || count == n) {
+            return null;
+        }
+        body = largestComponent(g, body);
+        fillHoles(g, body);
+        return body;
+    }
+
     static double otsu(float[] x, boolean[] mask) {
         float lo = Float.POSITIVE_INFINITY;
         float hi = Float.NEGATIVE_INFINITY;

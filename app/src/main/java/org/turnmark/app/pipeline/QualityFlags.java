@@ -57,36 +57,46 @@ final class QualityFlags {
 
     /**
      * Similarity and folding of a registration; {@code fromMechanics}: it started from the mechanics
-     * field, whose own folding is then told apart from the residual registration's.
+     * field, whose own folding is then told apart from the residual registration's;
+     * {@code inBody}: det J statistics over the body voxels of the fixed image (null if unknown).
      */
     static void registration(List<PlanResult.QualityFlag> flags, String what, RegistrationResult r,
-                             boolean fromMechanics) {
+                             boolean fromMechanics, JacobianStats inBody) {
         double change = r.costInitial() == 0 ? 0 : (r.costFinal() - r.costInitial()) / Math.abs(r.costInitial()) * 100;
         flags.add(new PlanResult.QualityFlag(r.improved() ? PlanResult.QualityFlag.OK : PlanResult.QualityFlag.WARNING,
                 what + " similarity", f("%s cost %.4g before, %.4g after (%+.1f %%, lower is better)%s",
                         r.metric(), r.costInitial(), r.costFinal(), change,
                         r.improved() ? "" : "; the registration could not improve on its start")));
-        flags.add(folding(what, r.jacobian(), fromMechanics ? r.residualJacobian() : null));
+        flags.add(folding(what, r.jacobian(), inBody, fromMechanics ? r.residualJacobian() : null));
     }
 
     /**
-     * Folding of a registration's total map and, when it started from the mechanics field
-     * ({@code residual} not null), of its residual part alone, so the reader can tell which part folds.
+     * Folding of a registration's map. Tissue folds when det J ≤ 0 inside the body ({@code inBody});
+     * folds only in the air around it (where the fields are extrapolated) do not move tissue and are
+     * reported without alarm. When the map started from the mechanics field ({@code residual} not
+     * null) the residual part's own statistics tell which part folds. Without body statistics any
+     * fold counts as tissue.
      */
-    static PlanResult.QualityFlag folding(String what, JacobianStats total, JacobianStats residual) {
-        boolean folds = total.percentNonPositive() > 0;
-        String text = f("Jacobian determinant min %.3f, %.3f %% of voxels ≤ 0, SD of log det J %.3f",
+    static PlanResult.QualityFlag folding(String what, JacobianStats total, JacobianStats inBody,
+                                          JacobianStats residual) {
+        boolean foldsAnywhere = total.percentNonPositive() > 0;
+        boolean foldsTissue = inBody == null ? foldsAnywhere : inBody.percentNonPositive() > 0;
+        String text = inBody == null ? "" : f("inside the body: Jacobian determinant min %.3f, %.3f %% of voxels ≤ 0; ",
+                inBody.minDet(), inBody.percentNonPositive());
+        text += f("whole grid: Jacobian determinant min %.3f, %.3f %% of voxels ≤ 0, SD of log det J %.3f",
                 total.minDet(), total.percentNonPositive(), total.sdLogDet());
         if (residual != null) {
             text += f("; the residual registration alone: min %.3f, %.3f %% ≤ 0", residual.minDet(),
                     residual.percentNonPositive());
         }
-        if (folds) {
+        if (foldsTissue) {
             text += residual != null && residual.percentNonPositive() == 0
                     ? ": the map folds tissue where its mechanics start folds (the residual registration does not)"
                     : ": the map folds tissue";
+        } else if (foldsAnywhere) {
+            text += ": it folds only in the air outside the body, which moves no tissue";
         }
-        return new PlanResult.QualityFlag(folds ? PlanResult.QualityFlag.PROBLEM : PlanResult.QualityFlag.OK,
+        return new PlanResult.QualityFlag(foldsTissue ? PlanResult.QualityFlag.PROBLEM : PlanResult.QualityFlag.OK,
                 what + " folding", text);
     }
 

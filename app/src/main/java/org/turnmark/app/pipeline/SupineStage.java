@@ -19,6 +19,8 @@ import org.turnmark.registration.resample.Interp;
 import org.turnmark.registration.resample.Outside;
 import org.turnmark.registration.resample.Resampler;
 import org.turnmark.registration.transform.DisplacementFields;
+import org.turnmark.registration.transform.JacobianStats;
+import org.turnmark.registration.transform.Jacobians;
 import org.turnmark.registration.volume.VectorField;
 import org.turnmark.registration.volume.Volume;
 
@@ -141,8 +143,23 @@ final class SupineStage {
         }
 
         void flags(List<PlanResult.QualityFlag> flags) {
-            QualityFlags.registration(flags, "hybrid registration", s.hybridResult, true);
-            QualityFlags.registration(flags, "registration-only baseline", s.regResult, false);
+            // folding is judged inside the body of the supine image: the fields are extrapolated
+            // into the air around it, where a fold moves no tissue
+            boolean[] body = AutoSegmentation.bodyMask(s.supine);
+            Volume mask = null;
+            if (body != null) {
+                float[] m = new float[body.length];
+                for (int v = 0; v < m.length; v++) {
+                    m[v] = body[v] ? 1f : 0f;
+                }
+                mask = new Volume(s.supine.grid(), m);
+            }
+            QualityFlags.registration(flags, "hybrid registration", s.hybridResult, true, inside(s.hybrid, mask));
+            QualityFlags.registration(flags, "registration-only baseline", s.regResult, false, inside(s.regOnly, mask));
+        }
+
+        private static JacobianStats inside(VectorField u, Volume mask) {
+            return mask == null ? null : Jacobians.summarize(Jacobians.determinant(u), mask);
         }
 
         void artifacts(Map<String, PlanArtifacts.Field> fields, Map<String, Volume> warped) {

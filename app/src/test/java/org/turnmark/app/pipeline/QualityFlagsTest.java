@@ -13,28 +13,41 @@ class QualityFlagsTest {
         return new JacobianStats(1000, minDet, 1.5, percentNonPositive, 0, 0.1);
     }
 
-    /** A hybrid map that folds only where its mechanics start folds says so, and is still a problem. */
+    /**
+     * A hybrid map that folds only where its mechanics start folds says so, and is still a problem
+     * (no body statistics: every fold counts as tissue).
+     */
     @Test
     void foldingIsAttributedToTheMechanicsStartWhenTheResidualDoesNotFold() {
-        PlanResult.QualityFlag f = QualityFlags.folding("hybrid registration", stats(-0.08, 0.006), stats(0.4, 0));
+        PlanResult.QualityFlag f = QualityFlags.folding("hybrid registration", stats(-0.08, 0.006), null, stats(0.4, 0));
         assertEquals(PlanResult.QualityFlag.PROBLEM, f.severity());
         assertTrue(f.message().contains("mechanics start folds"), f.message());
         assertTrue(f.message().contains("residual registration alone: min 0.400"), f.message());
     }
 
-    /** When the residual registration folds too, the flag does not blame the mechanics start. */
+    /** Folding inside the body where the residual folds too: a problem, not blamed on the start. */
     @Test
     void foldingOfTheResidualIsNotAttributedToTheStart() {
-        PlanResult.QualityFlag f = QualityFlags.folding("hybrid registration", stats(-0.08, 0.006), stats(-0.01, 0.002));
+        PlanResult.QualityFlag f = QualityFlags.folding("hybrid registration", stats(-0.08, 0.006), stats(-0.05, 0.01), stats(-0.01, 0.002));
         assertEquals(PlanResult.QualityFlag.PROBLEM, f.severity());
         assertFalse(f.message().contains("mechanics start"), f.message());
         assertTrue(f.message().endsWith("the map folds tissue"), f.message());
     }
 
+    /** Folds only outside the body (in the extrapolated air) move no tissue: OK, and said so. */
+    @Test
+    void foldingOnlyOutsideTheBodyIsNotAProblem() {
+        PlanResult.QualityFlag f = QualityFlags.folding("hybrid registration", stats(-0.08, 0.006), stats(0.3, 0),
+                stats(0.4, 0));
+        assertEquals(PlanResult.QualityFlag.OK, f.severity());
+        assertTrue(f.message().contains("only in the air outside the body"), f.message());
+        assertTrue(f.message().startsWith("inside the body: Jacobian determinant min 0.300"), f.message());
+    }
+
     /** No folding: an OK flag; a baseline without a mechanics start reports only its total map. */
     @Test
     void noFoldingIsOk() {
-        PlanResult.QualityFlag f = QualityFlags.folding("registration-only baseline", stats(0.42, 0), null);
+        PlanResult.QualityFlag f = QualityFlags.folding("registration-only baseline", stats(0.42, 0), stats(0.5, 0), null);
         assertEquals(PlanResult.QualityFlag.OK, f.severity());
         assertFalse(f.message().contains("residual"), f.message());
         assertFalse(f.message().contains("folds"), f.message());
