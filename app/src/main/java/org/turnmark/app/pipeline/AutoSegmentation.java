@@ -75,7 +75,7 @@ public final class AutoSegmentation {
         int n = img.length;
         List<String> notes = new ArrayList<>();
         double t = otsu(img, null);
-        boolean[] body = bodyMask(prone);
+        boolean[] body = bodyMask(prone, t);
         if (body == null) {
             throw new PlanInputException("automatic segmentation: the prone image has no contrast between body and "
                     + "background (Otsu threshold " + t + "); give a label image");
@@ -182,10 +182,13 @@ public final class AutoSegmentation {
      * filled; null if the threshold separates nothing (no contrast).
      */
     static boolean[] bodyMask(Volume image) {
+        return bodyMask(image, otsu(image.data(), null));
+    }
+
+    private static boolean[] bodyMask(Volume image, double t) {
         Grid3 g = image.grid();
         float[] img = image.data();
         int n = img.length;
-        double t = otsu(img, null);
         boolean[] body = new boolean[n];
         int count = 0;
         for (int v = 0; v < n; v++) {

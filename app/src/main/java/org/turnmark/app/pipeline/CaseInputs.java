@@ -114,8 +114,12 @@ public final class CaseInputs {
         return prone.voxelToWorld().applyPoint(v[0], v[1], v[2]);
     }
 
-    /** A refined centroid and how it was found. */
-    public record Centroid(double[] rasMm, String how) {
+    /**
+     * A refined centroid and how it was found.
+     *
+     * @param onLabel true when it is the centroid of a lesion label (no hand-marking error left)
+     */
+    public record Centroid(double[] rasMm, String how, boolean onLabel) {
     }
 
     /**
@@ -142,7 +146,8 @@ public final class CaseInputs {
                         m.id(), m.label(), r, mark[0], mark[1], mark[2]));
             }
             return new Centroid(new double[] {sum[0] / count[0], sum[1] / count[0], sum[2] / count[0]},
-                    String.format(Locale.ROOT, "centroid of label %d within %.1f mm (%d voxels)", m.label(), r, count[0]));
+                    String.format(Locale.ROOT, "centroid of label %d within %.1f mm (%d voxels)", m.label(), r, count[0]),
+                    true);
         }
         if (m.radiusMm() != null) {
             List<double[]> pts = new ArrayList<>();
@@ -169,12 +174,12 @@ public final class CaseInputs {
                 }
                 if (w > 0) {
                     return new Centroid(new double[] {c[0] / w, c[1] / w, c[2] / w}, String.format(Locale.ROOT,
-                            "intensity-weighted centroid of the enhancing voxels within %.1f mm", m.radiusMm()));
+                            "intensity-weighted centroid of the enhancing voxels within %.1f mm", m.radiusMm()), false);
                 }
             }
-            return new Centroid(mark, "as marked (no enhancing voxels within the radius)");
+            return new Centroid(mark, "as marked (no enhancing voxels within the radius)", false);
         }
-        return new Centroid(mark, "as marked");
+        return new Centroid(mark, "as marked", false);
     }
 
     /** Visitor of voxels in a ball: flat index and world position. */

@@ -291,7 +291,7 @@ public final class Planner {
                 // registration's own error, and an isotropic error growing with the correction the registration
                 // made to its mechanical start at the lesion.
                 PlanResult.CovarianceTerms terms = covMs == null ? null : new PlanResult.CovarianceTerms(
-                        reg.rotateCovariance(markCov), li.mark.label() != null ? 0 : 1, c.priors().registrationSdMm(),
+                        reg.rotateCovariance(markCov), li.centroid.onLabel() ? 0 : 1, c.priors().registrationSdMm(),
                         diff(xh, xms), SupineStage.HYBRID_CORRECTION_WEIGHT);
                 preds.add(prediction(PlanResult.HYBRID, PlanResult.FRAME_SUPINE, x0, xh, terms,
                         describe(li.side, xh, reg.hybridPoint(nip), surfaces, supNodesS), err(truthS, xh), ellSupine));

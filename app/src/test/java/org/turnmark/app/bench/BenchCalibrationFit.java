@@ -194,30 +194,19 @@ public final class BenchCalibrationFit {
      * mechanics-only (supine frame) row of the same seed and lesion before it.
      */
     static List<Case> read(Path csv, Shape shape) throws IOException {
-        List<String> lines = Files.readAllLines(csv, StandardCharsets.UTF_8);
-        Map<String, Integer> col = null;
+        Table t = Table.read(csv);
+        Map<String, Integer> col = t.col();
+        for (String need : new String[] {"seed", "lesion", "method", "error_x_mm", "hyb_marking_xx_mm2",
+                "hyb_mechanics_xx_mm2", "hyb_marking_weight"}) {
+            if (!col.containsKey(need)) {
+                throw new IOException(csv + ": header has no column '" + need + "' (a CSV of BenchCalibration "
+                        + "with the hybrid covariance terms is expected)");
+            }
+        }
         Map<String, double[]> mechanicsError = new HashMap<>();
         List<Case> out = new ArrayList<>();
-        for (int ln = 0; ln < lines.size(); ln++) {
-            String line = lines.get(ln);
-            if (line.startsWith("#") || line.isBlank()) {
-                continue;
-            }
-            String[] f = line.split(",", -1);
-            if (col == null) {
-                col = new HashMap<>();
-                for (int i = 0; i < f.length; i++) {
-                    col.put(f[i], i);
-                }
-                for (String need : new String[] {"seed", "lesion", "method", "error_x_mm", "hyb_marking_xx_mm2",
-                        "hyb_mechanics_xx_mm2", "hyb_marking_weight"}) {
-                    if (!col.containsKey(need)) {
-                        throw new IOException(csv + ": header has no column '" + need + "' (a CSV of BenchCalibration "
-                                + "with the hybrid covariance terms is expected)");
-                    }
-                }
-                continue;
-            }
+        for (int r = 0; r < t.rows().size(); r++) {
+            String[] f = t.rows().get(r);
             String key = f[col.get("seed")] + "/" + f[col.get("lesion")];
             if (BenchCalibration.MECHANICS_SUPINE.equals(f[col.get("method")])) {
                 mechanicsError.put(key, new double[] {num(f, col, "error_x_mm"), num(f, col, "error_y_mm"),
@@ -245,7 +234,7 @@ public final class BenchCalibrationFit {
                 out.add(new Case(Long.parseLong(f[col.get("seed")]), e, symmetric(f, col, "hyb_marking_"),
                         num(f, col, "hyb_marking_weight"), g));
             } catch (RuntimeException ex) {
-                throw new IOException(csv + " line " + (ln + 1) + ": " + ex.getMessage(), ex);
+                throw new IOException(csv + " line " + t.lines().get(r) + ": " + ex.getMessage(), ex);
             }
         }
         return out;
@@ -253,25 +242,49 @@ public final class BenchCalibrationFit {
 
     /** Seed and d² (as the plan computed it) of every row of {@code method} with a d², from a calibration CSV. */
     static List<double[]> readD2(Path csv, String method) throws IOException {
-        Map<String, Integer> col = null;
+        Table t = Table.read(csv);
+        Map<String, Integer> col = t.col();
         List<double[]> out = new ArrayList<>();
-        for (String line : Files.readAllLines(csv, StandardCharsets.UTF_8)) {
-            if (line.startsWith("#") || line.isBlank()) {
-                continue;
-            }
-            String[] f = line.split(",", -1);
-            if (col == null) {
-                col = new HashMap<>();
-                for (int i = 0; i < f.length; i++) {
-                    col.put(f[i], i);
-                }
-                continue;
-            }
+        for (String[] f : t.rows()) {
             if (method.equals(f[col.get("method")]) && !f[col.get("d2")].isEmpty()) {
                 out.add(new double[] {Long.parseLong(f[col.get("seed")]), num(f, col, "d2")});
             }
         }
         return out;
+    }
+
+    /**
+     * A calibration CSV: column index by header name, the data rows, and each row's line number
+     * (1-based, for messages); lines starting with '#' and blank lines are skipped.
+     */
+    record Table(Map<String, Integer> col, List<String[]> rows, List<Integer> lines) {
+
+        static Table read(Path csv) throws IOException {
+            List<String> text = Files.readAllLines(csv, StandardCharsets.UTF_8);
+            Map<String, Integer> col = null;
+            List<String[]> rows = new ArrayList<>();
+            List<Integer> lines = new ArrayList<>();
+            for (int ln = 0; ln < text.size(); ln++) {
+                String line = text.get(ln);
+                if (line.startsWith("#") || line.isBlank()) {
+                    continue;
+                }
+                String[] f = line.split(",", -1);
+                if (col == null) {
+                    col = new HashMap<>();
+                    for (int i = 0; i < f.length; i++) {
+                        col.put(f[i], i);
+                    }
+                } else {
+                    rows.add(f);
+                    lines.add(ln + 1);
+                }
+            }
+            if (col == null) {
+                throw new IOException(csv + ": no header line");
+            }
+            return new Table(col, rows, lines);
+        }
     }
 
     /** Coverage counts and mean d² of given d² values with seeds in a range. */

@@ -40,6 +40,7 @@ public final class HexKernel {
     private final double[] ga = new double[24];   // F⁻ᵀ n_a
     private final double[] d = new double[24];    // ∂v/∂u
     private final double[] vb = new double[24];   // tt F n_b + gg F⁻ᵀ n_b (tangent scratch)
+    private final double[] wb = new double[24];   // tt F⁻ᵀ n_b (tangent scratch)
     private double minDetF;
 
     /** Smallest det F at the Gauss points of the last {@link #evaluate} call. */
@@ -219,6 +220,9 @@ public final class HexKernel {
                 vb[q] = tt * fa[q] + gg * ga[q];
                 vb[q + 1] = tt * fa[q + 1] + gg * ga[q + 1];
                 vb[q + 2] = tt * fa[q + 2] + gg * ga[q + 2];
+                wb[q] = tt * ga[q];
+                wb[q + 1] = tt * ga[q + 1];
+                wb[q + 2] = tt * ga[q + 2];
             }
             for (int a = 0; a < 8; a++) {
                 double na0 = grad[gb + 3 * a];
@@ -229,7 +233,7 @@ public final class HexKernel {
                 double ta0 = gt * ga0, ta1 = gt * ga1, ta2 = gt * ga2;
                 for (int b = a; b < 8; b++) {
                     double nn = wc * (na0 * grad[gb + 3 * b] + na1 * grad[gb + 3 * b + 1] + na2 * grad[gb + 3 * b + 2]);
-                    double wb0 = tt * ga[3 * b], wb1 = tt * ga[3 * b + 1], wb2 = tt * ga[3 * b + 2];
+                    double wb0 = wb[3 * b], wb1 = wb[3 * b + 1], wb2 = wb[3 * b + 2];
                     double vb0 = vb[3 * b], vb1 = vb[3 * b + 1], vb2 = vb[3 * b + 2];
                     double gb0 = ga[3 * b], gb1 = ga[3 * b + 1], gb2 = ga[3 * b + 2];
                     int r0 = 24 * (3 * a) + 3 * b;

@@ -8,8 +8,8 @@ import org.turnmark.geom.Parallel;
  * thread safe.
  *
  * <p>When the preconditioner keeps a single-precision copy Ã of A (the multigrid does, for its
- * smoother) and the tolerance is at least {@value #SINGLE_MIN_TOL}, the iteration's products use Ã:
- * half the memory traffic of the product that dominates the cost. The recurrences then track
+ * smoother: {@link UpperFloatMatrix}, about a quarter of the bytes of the double-precision product)
+ * and the tolerance is at least {@value #SINGLE_MIN_TOL}, the iteration's products use Ã. The recurrences then track
  * b − Ã x, so convergence is confirmed with the true residual b − A x in double precision; if that
  * is still above the tolerance the residual is replaced by it and the iteration restarts from x
  * (iterative refinement: each restart multiplies the error by about ‖(A − Ã) A⁻¹‖ ≈ 1e−7 κ(A)). A

@@ -22,12 +22,8 @@ class AggregationMultigridTest {
     @Test
     void shiftedRefreshGivesGalerkinProductOfShiftedMatrix() {
         HexMesh mesh = VoxelBreast.halfEllipsoid(40, 30, 35, 3, true);
-        FeSystem sys = new FeSystem(mesh, MaterialTable.DEFAULTS, HexFormulation.MEAN_DILATATION);
+        FeSystem sys = projectedTangent(mesh);
         int n = 3 * mesh.nodeCount();
-        double[] u = new double[n];
-        double[] f = new double[n];
-        sys.assemble(u, f, true, new double[1]);
-        new Projector(VoxelBreast.fixedChestWall(mesh)).projectMatrix(sys.k);
         AggregationMultigrid mg = new AggregationMultigrid(mesh.xyzMm());
         mg.setup(sys.k);
         assertTrue(mg.levelCount() >= 3, "the test needs two coarse levels, has " + mg.levelCount());
@@ -48,8 +44,8 @@ class AggregationMultigridTest {
             mg.refresh(sys.k, sigma);
             for (int li = 1; li < mg.levelCount(); li++) {
                 BlockCsr ac = mg.operator(li);
-                double[] y = random(rnd, ac.size());
-                double[] z = random(rnd, ac.size());
+                double[] y = TestMeshes.randomVector(rnd, ac.size());
+                double[] z = TestMeshes.randomVector(rnd, ac.size());
                 double[] acy = new double[ac.size()];
                 ac.multiply(y, acy);
                 double coarse = VecOps.dot(z, acy);
@@ -72,15 +68,13 @@ class AggregationMultigridTest {
     @Test
     void singlePrecisionProductsMeetTheToleranceInDoublePrecision() {
         HexMesh mesh = VoxelBreast.halfEllipsoid(24, 18, 20, 3, true);
-        FeSystem sys = new FeSystem(mesh, MaterialTable.DEFAULTS, HexFormulation.MEAN_DILATATION);
+        FeSystem sys = projectedTangent(mesh);
         int n = 3 * mesh.nodeCount();
-        sys.assemble(new double[n], new double[n], true, new double[1]);
         Projector proj = new Projector(VoxelBreast.fixedChestWall(mesh));
-        proj.projectMatrix(sys.k);
         AggregationMultigrid mg = new AggregationMultigrid(mesh.xyzMm());
         mg.setup(sys.k);
         assertTrue(mg.singlePrecision(sys.k) != null, "the multigrid keeps a single-precision copy");
-        double[] b = random(new Random(9), n);
+        double[] b = TestMeshes.randomVector(new Random(9), n);
         proj.project(b);
         double bn = VecOps.norm(b);
         for (double tol : new double[] {1e-4, Pcg.SINGLE_MIN_TOL}) {
@@ -94,6 +88,15 @@ class AggregationMultigridTest {
             }
             assertTrue(Math.sqrt(rn) <= tol * bn, "true relative residual " + Math.sqrt(rn) / bn + " > " + tol);
         }
+    }
+
+    /** Tangent of the unloaded mesh with the chest wall fixed, projected as the solver does. */
+    private static FeSystem projectedTangent(HexMesh mesh) {
+        FeSystem sys = new FeSystem(mesh, MaterialTable.DEFAULTS, HexFormulation.MEAN_DILATATION);
+        int n = 3 * mesh.nodeCount();
+        sys.assemble(new double[n], new double[n], true, new double[1]);
+        new Projector(VoxelBreast.fixedChestWall(mesh)).projectMatrix(sys.k);
+        return sys;
     }
 
     private static void addDiagonal(BlockCsr a, double c) {
@@ -113,14 +116,6 @@ class AggregationMultigridTest {
         }
         assertEquals(n, x.length);
         return x;
-    }
-
-    private static double[] random(Random rnd, int n) {
-        double[] v = new double[n];
-        for (int i = 0; i < n; i++) {
-            v[i] = rnd.nextDouble() - 0.5;
-        }
-        return v;
     }
 
     private static double maxAbs(double[] v) {

@@ -8,6 +8,15 @@ public final class TestMeshes {
     private TestMeshes() {
     }
 
+    /** n values uniform in [−0.5, 0.5) from {@code rnd} (seeded by the caller). */
+    public static double[] randomVector(java.util.Random rnd, int n) {
+        double[] v = new double[n];
+        for (int i = 0; i < n; i++) {
+            v[i] = rnd.nextDouble() - 0.5;
+        }
+        return v;
+    }
+
     /** Node index of grid point (i, j, k) in a box of nx × ny × nz elements. */
     public static int node(int nx, int ny, int i, int j, int k) {
         return i + (nx + 1) * (j + (ny + 1) * k);

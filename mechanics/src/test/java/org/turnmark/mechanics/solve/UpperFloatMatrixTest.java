@@ -28,7 +28,7 @@ class UpperFloatMatrixTest {
         UpperFloatMatrix f = new UpperFloatMatrix(a);
         f.refresh();
         assertEquals((a.col.length + a.rows) / 2, f.storedBlocks(), "diagonal plus upper triangle");
-        double[] x = random(new Random(3), a.size());
+        double[] x = TestMeshes.randomVector(new Random(3), a.size());
         double[] y = new double[a.size()];
         double[] yf = new double[a.size()];
         a.multiply(x, y);
@@ -54,7 +54,7 @@ class UpperFloatMatrixTest {
         FeSystem sys = tangent(VoxelBreast.halfEllipsoid(40, 30, 35, 3, true));
         UpperFloatMatrix f = new UpperFloatMatrix(sys.k);
         f.refresh();
-        double[] x = random(new Random(4), sys.k.size());
+        double[] x = TestMeshes.randomVector(new Random(4), sys.k.size());
         double[] y1 = new double[x.length];
         double[] y2 = new double[x.length];
         new java.util.concurrent.ForkJoinPool(1).submit(() -> f.multiply(x, y1)).get();
@@ -65,19 +65,11 @@ class UpperFloatMatrixTest {
     private static FeSystem tangent(HexMesh mesh) {
         FeSystem sys = new FeSystem(mesh, MaterialTable.DEFAULTS, HexFormulation.MEAN_DILATATION);
         int n = 3 * mesh.nodeCount();
-        double[] u = random(new Random(2), n);
+        double[] u = TestMeshes.randomVector(new Random(2), n);
         for (int i = 0; i < n; i++) {
             u[i] *= 0.2;   // a deformed state: the tangent has non-trivial values everywhere
         }
         sys.assemble(u, new double[n], true, new double[1]);
         return sys;
-    }
-
-    private static double[] random(Random rnd, int n) {
-        double[] v = new double[n];
-        for (int i = 0; i < n; i++) {
-            v[i] = rnd.nextDouble() - 0.5;
-        }
-        return v;
     }
 }
