@@ -67,9 +67,10 @@ final class CaseSummary {
                         num(p.nu().min()), num(p.nu().max()), num(p.nu().nominal()))));
             }
             rows.add(new InfoRow("Other priors", String.format(Locale.ROOT,
-                    "sliding chest wall p = %s, gravity ± %s°, marking ± %s mm, registration ± %s mm (SD)",
+                    "sliding chest wall p = %s, gravity ± %s°, marking ± %s mm, registration ± %s mm, "
+                            + "mechanics in the supine frame ± %s mm (SD)",
                     num(p.chestWallSlidingProbability()), num(p.gravityDirectionSdDeg()),
-                    num(p.lesionMarkingSdMm()), num(p.registrationSdMm()))));
+                    num(p.lesionMarkingSdMm()), num(p.registrationSdMm()), num(p.mechanicsSupineSdMm()))));
         }
         CaseFile.UncertaintyOptions u = c.uncertainty();
         if (u != null) {

@@ -280,7 +280,10 @@ public final class Planner {
             if (reg != null) {
                 // Mechanics-only in the supine frame through the rigid alignment, then hybrid and registration-only.
                 double[] xms = reg.proneFrameToSupine(xm);
-                double[] covMs = covM == null ? null : reg.rotateCovariance(covM);
+                // Σ = R Σ_m Rᵀ + s_a² I: the sampled spread rotated into the supine frame, plus the rigid
+                // alignment's and the unsampled model error (docs/planner.md, Uncertainty).
+                double[] covMs = covM == null ? null : Covariance3.add(reg.rotateCovariance(covM),
+                        Covariance3.isotropic(c.priors().mechanicsSupineSdMm()));
                 double[] truthS = truth.get(li.mark.id());
                 preds.add(prediction(PlanResult.MECHANICS, PlanResult.FRAME_SUPINE, x0, xms, covMs,
                         describe(li.side, xms, reg.proneFrameToSupine(nipSup), surfaces, supNodesS), rank, err(truthS, xms),

@@ -36,6 +36,11 @@ import org.turnmark.geom.ResearchUse;
  * method, w on a grid and then by Brent's method around the best grid point. Standard errors from the
  * numerical Hessian of the negative log-likelihood (observed information) at the optimum.
  *
+ * <p>Mechanics-only (supine frame): e_i ~ N(0, Σ_m,i + s_m² I) with Σ_m,i the sampled covariance rotated
+ * into the supine frame (the CSV's cov_* less the s_m² the plan added, column mech_supine_sd_mm; CSVs
+ * written before that column existed hold Σ_m,i alone) and s_m the isotropic alignment and model error.
+ * The same profile fit with Σ_m,i in the place of K (weight 1) and no shape term.
+ *
  * <pre>
  * java -cp app/target/turnmark.jar:app/target/test-classes org.turnmark.app.bench.BenchCalibrationFit \
  *   --csv FILE.csv --fit 1-24 --check 25-48 [--shape correction|mechanics] [--planner-sd-mm S --planner-weight W]
@@ -240,6 +245,54 @@ public final class BenchCalibrationFit {
         return out;
     }
 
+    /**
+     * Reads the mechanics-only (supine frame) rows of a calibration CSV with a covariance, as cases whose
+     * marking term (weight 1) is the sampled covariance Σ_m: the row's covariance less the isotropic term
+     * the plan added (column mech_supine_sd_mm, 0 when the column is absent or empty). Fit them with
+     * {@link #profileSd}(cases, 0).
+     */
+    static List<Case> readMechanics(Path csv) throws IOException {
+        Table t = Table.read(csv);
+        Map<String, Integer> col = t.col();
+        for (String need : new String[] {"seed", "method", "error_x_mm", "cov_xx_mm2"}) {
+            if (!col.containsKey(need)) {
+                throw new IOException(csv + ": header has no column '" + need + "' (a CSV of BenchCalibration "
+                        + "is expected)");
+            }
+        }
+        Integer sdCol = col.get("mech_supine_sd_mm");
+        List<Case> out = new ArrayList<>();
+        for (int r = 0; r < t.rows().size(); r++) {
+            String[] f = t.rows().get(r);
+            if (!BenchCalibration.MECHANICS_SUPINE.equals(f[col.get("method")]) || f[col.get("cov_xx_mm2")].isEmpty()) {
+                continue;
+            }
+            try {
+                double[] e = {num(f, col, "error_x_mm"), num(f, col, "error_y_mm"), num(f, col, "error_z_mm")};
+                double[] m = symmetric(f, col, "cov_");
+                double sd = sdCol == null || sdCol >= f.length || f[sdCol].isEmpty() ? 0 : Double.parseDouble(f[sdCol]);
+                m[0] -= sd * sd;
+                m[4] -= sd * sd;
+                m[8] -= sd * sd;
+                out.add(new Case(Long.parseLong(f[col.get("seed")]), e, m, 1, new double[9]));
+            } catch (RuntimeException ex) {
+                throw new IOException(csv + " line " + t.lines().get(r) + ": " + ex.getMessage(), ex);
+            }
+        }
+        return out;
+    }
+
+    /**
+     * Standard error (mm) of the ML isotropic SD for a fixed shape weight: 1/√(∂²NLL/∂s²) by a central
+     * second difference (observed information).
+     */
+    static double sdStandardError(List<Case> cases, double sdMm, double weight) {
+        double h = 1e-3 * sdMm;
+        double f2 = (negLogLik(cases, sdMm + h, weight) - 2 * negLogLik(cases, sdMm, weight)
+                + negLogLik(cases, sdMm - h, weight)) / (h * h);
+        return f2 > 0 ? 1 / Math.sqrt(f2) : Double.NaN;
+    }
+
     /** Seed and d² (as the plan computed it) of every row of {@code method} with a d², from a calibration CSV. */
     static List<double[]> readD2(Path csv, String method) throws IOException {
         Table t = Table.read(csv);
@@ -391,6 +444,7 @@ public final class BenchCalibrationFit {
         double oldWeight = 0.25;
         Double plannerSd = null;
         Double plannerWeight = null;
+        Double plannerMechSd = null;
         for (int i = 0; i + 1 < args.length; i += 2) {
             String v = args[i + 1];
             switch (args[i]) {
@@ -410,13 +464,14 @@ public final class BenchCalibrationFit {
                 case "--compare-weight" -> oldWeight = Double.parseDouble(v);
                 case "--planner-sd-mm" -> plannerSd = Double.parseDouble(v);
                 case "--planner-weight" -> plannerWeight = Double.parseDouble(v);
+                case "--planner-mech-sd-mm" -> plannerMechSd = Double.parseDouble(v);
                 default -> throw new IllegalArgumentException("unknown option " + args[i]);
             }
         }
         if (csvs.isEmpty() || fitRange == null || checkRanges.isEmpty()) {
             System.err.println("usage: BenchCalibrationFit --csv FILE[,FILE...] --fit FROM-TO --check FROM-TO[,FROM-TO...] "
                     + "[--shape correction|mechanics] [--compare-sd-mm 1.5 --compare-weight 0.25] "
-                    + "[--planner-sd-mm S --planner-weight W]");
+                    + "[--planner-sd-mm S --planner-weight W] [--planner-mech-sd-mm S_M]");
             System.exit(2);
             return;
         }
@@ -441,6 +496,15 @@ public final class BenchCalibrationFit {
                             : "mechanics-only covariance", x.registrationSdMm(), x.sdSeMm(), x.weight(), x.weightSe(),
                     x.negLogLik(), 2 * x.negLogLik() + 4);
         }
+        List<Case> mechAll = new ArrayList<>();
+        for (Path p : csvs) {
+            mechAll.addAll(readMechanics(p));
+        }
+        List<Case> mechFit = select(mechAll, fitRange);
+        double sMech = profileSd(mechFit, 0);
+        System.out.printf(Locale.ROOT, "mechanics-only (supine frame), %d lesions: ML fit Σ_m + s_m² I: s_m = %.3f mm "
+                + "(SE %.3f mm), −log L = %.3f (Σ_m alone: %.3f)%n", mechFit.size(), sMech,
+                sdStandardError(mechFit, sMech, 0), negLogLik(mechFit, sMech, 0), negLogLik(mechFit, 0, 0));
         double sIso = profileSd(fitSet, 0);
         System.out.printf(Locale.ROOT, "ML fit, w = 0: s = %.3f mm, −log L = %.3f, AIC = %.2f%n", sIso,
                 negLogLik(fitSet, sIso, 0), 2 * negLogLik(fitSet, sIso, 0) + 2);
@@ -458,7 +522,15 @@ public final class BenchCalibrationFit {
             String n = name(r, k == 0 ? "fit" : "held out");
             List<Case> cs = select(all, r);
             List<Case> csM = select(allM, r);
-            System.out.println(row("mechanics-only (supine frame; unchanged)", n, checkD2(mech, r)));
+            System.out.println(row("mechanics-only (supine frame), as the plans computed it", n, checkD2(mech, r)));
+            List<Case> ms = select(mechAll, r);
+            System.out.println(row("mechanics-only (supine frame), Σ_m alone", n, check(ms, 0, 0)));
+            System.out.println(row(String.format(Locale.ROOT, "mechanics-only (supine frame), ML fit: Σ_m + %.3f² I",
+                    sMech), n, check(ms, sMech, 0)));
+            if (plannerMechSd != null) {
+                System.out.println(row(String.format(Locale.ROOT, "mechanics-only (supine frame), planner default: "
+                        + "Σ_m + %s² I", plannerMechSd), n, check(ms, plannerMechSd, 0)));
+            }
             List<Case> withMarking = new ArrayList<>();
             for (Case c : csM) {
                 withMarking.add(new Case(c.seed(), c.errorMm(), c.markingMm2(), 1, c.shapeMm2()));

@@ -131,6 +131,67 @@ class BenchCalibrationFitTest {
         assertEquals(0, g[1]);
     }
 
+    @Test
+    void recoversTheMechanicsSupineSdFromSyntheticGaussianErrors() {
+        // e ~ N(0, Σ_m + s_m² I) with an elongated Σ_m per lesion, as the mechanics-only rows are modelled.
+        Random r = new Random(SEED + 1);
+        double trueSd = 1.1;
+        List<BenchCalibrationFit.Case> cases = new ArrayList<>();
+        for (int i = 0; i < N; i++) {
+            double[] lambda = {4 + 20 * r.nextDouble(), 0.5 + 2 * r.nextDouble(), 0.2 + r.nextDouble()};
+            double[] q = rotation(r);
+            double[] m = new double[9];
+            for (int a = 0; a < 3; a++) {
+                for (int b = 0; b < 3; b++) {
+                    for (int k = 0; k < 3; k++) {
+                        m[a * 3 + b] += q[a * 3 + k] * lambda[k] * q[b * 3 + k];
+                    }
+                }
+            }
+            BenchCalibrationFit.Case shape = new BenchCalibrationFit.Case(i, null, m, 1, new double[9]);
+            double[] l = cholesky(BenchCalibrationFit.covariance(shape, trueSd, 0));
+            double[] z = {r.nextGaussian(), r.nextGaussian(), r.nextGaussian()};
+            double[] e = {l[0] * z[0], l[3] * z[0] + l[4] * z[1], l[6] * z[0] + l[7] * z[1] + l[8] * z[2]};
+            cases.add(new BenchCalibrationFit.Case(i, e, m, 1, new double[9]));
+        }
+        double s = BenchCalibrationFit.profileSd(cases, 0);
+        double se = BenchCalibrationFit.sdStandardError(cases, s, 0);
+        assertTrue(se < MAX_RELATIVE_SE * trueSd, "SE " + se);
+        assertEquals(trueSd, s, SE_BAND * se);
+        // Σ_m alone is too narrow for these errors: mean d² above 3, and the fit brings it closer to 3.
+        double alone = BenchCalibrationFit.check(cases, 0, 0).meanD2();
+        double fitted = BenchCalibrationFit.check(cases, s, 0).meanD2();
+        assertTrue(alone > 3.3 && Math.abs(fitted - 3) < Math.abs(alone - 3), alone + " vs " + fitted);
+    }
+
+    @Test
+    void readsTheMechanicsRowsLessTheIsotropicTermThePlanAdded(@TempDir Path dir) throws Exception {
+        StringBuilder b = new StringBuilder("# caution\nseed,lesion,method,error_x_mm,error_y_mm,error_z_mm");
+        for (String n : BenchCalibration.SYMMETRIC_NAMES) {
+            b.append(",cov_").append(n).append("_mm2");
+        }
+        b.append(",mech_supine_sd_mm\n");
+        b.append("5,L1,mechanics-only (supine frame),1,2,3,10,20,30,1,2,3,2\n");
+        b.append("5,L1,hybrid,1,2,3,1,1,1,0,0,0,\n");
+        b.append("6,L1,mechanics-only (supine frame),1,2,3,10,20,30,1,2,3,\n");
+        Path csv = dir.resolve("m.csv");
+        Files.writeString(csv, b);
+        List<BenchCalibrationFit.Case> cases = BenchCalibrationFit.readMechanics(csv);
+        assertEquals(2, cases.size(), "the hybrid row is not a mechanics case");
+        double[] m = cases.get(0).markingMm2();
+        // 2 mm recorded: 2² = 4 mm² off the diagonal entries only
+        assertEquals(6, m[0]);
+        assertEquals(16, m[4]);
+        assertEquals(26, m[8]);
+        assertEquals(1, m[1]);
+        assertEquals(3, m[7]);
+        assertEquals(1, cases.get(0).markingWeight());
+        assertEquals(3, cases.get(0).errorMm()[2]);
+        // no recorded term (an older CSV row): the covariance as written
+        assertEquals(10, cases.get(1).markingMm2()[0]);
+        assertEquals(6, cases.get(1).seed());
+    }
+
     /** A random rotation (QR-free: Gram–Schmidt of three Gaussian vectors), row-major. */
     private static double[] rotation(Random r) {
         double[][] v = new double[3][3];

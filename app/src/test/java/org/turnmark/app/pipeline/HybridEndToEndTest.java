@@ -6,6 +6,7 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import java.nio.file.Path;
 
+import org.junit.jupiter.api.BeforeAll;
 import org.junit.jupiter.api.Test;
 import org.turnmark.geom.Progress;
 
@@ -33,10 +34,40 @@ class HybridEndToEndTest {
     /** Errors are recomputed from the reported positions and the case's truth: equal up to round-off (mm). */
     static final double ROUNDOFF_MM = 1e-9;
 
+    /**
+     * Eigenvalues of the supine-frame mechanics-only covariance against those of the prone-frame one plus
+     * s_m² (relative): a rotation keeps eigenvalues, so they agree to the round-off of the rotation and of
+     * the two eigen-decompositions (about 1e-15 relative); 1e-9 leaves room and still fails for any missing
+     * or doubled term (s_m² = 1.25 mm² against eigenvalues of 1–100 mm²).
+     */
+    static final double EIGEN_REL_TOL = 1e-9;
+
+    /** Two prior samples: the fewest that give a covariance (with the marking term, of full rank). */
+    static final int SAMPLES = 2;
+
+    private static CaseFile c;
+    private static PlanResult r;
+
+    @BeforeAll
+    static void plan() throws Exception {
+        c = new CaseFileReader().read(CASE).withElementSizeMm(ELEMENT_MM);
+        r = new Planner().run(c, new Planner.Options(SAMPLES), Progress.NONE).result();
+    }
+
     @Test
-    void hybridErrorIsWellBelowTheMechanicsOnlyErrorAgainstThePhantomTruth() throws Exception {
-        CaseFile c = new CaseFileReader().read(CASE).withElementSizeMm(ELEMENT_MM);
-        PlanResult r = new Planner().run(c, new Planner.Options(0), Progress.NONE).result();
+    void mechanicsOnlyCovarianceGainsTheAlignmentTermInTheSupineFrameOnly() {
+        double sm = c.priors().mechanicsSupineSdMm();
+        assertEquals(1.12, sm, 0.0, "the default of docs/case-format.md");
+        double[] prone = eigen(find(r, PlanResult.MECHANICS, PlanResult.FRAME_PRONE).covarianceMm2());
+        double[] supine = eigen(find(r, PlanResult.MECHANICS, PlanResult.FRAME_SUPINE).covarianceMm2());
+        // Σ_supine = R Σ_prone Rᵀ + s_m² I: same eigenvectors up to R, every eigenvalue raised by s_m²
+        for (int i = 0; i < 3; i++) {
+            assertEquals(prone[i] + sm * sm, supine[i], EIGEN_REL_TOL * supine[i], "eigenvalue " + i);
+        }
+    }
+
+    @Test
+    void hybridErrorIsWellBelowTheMechanicsOnlyErrorAgainstThePhantomTruth() {
         double[] truth = c.truth().lesions().get(0).supineRasMm();
         PlanResult.Prediction mech = find(r, PlanResult.MECHANICS);
         PlanResult.Prediction hyb = find(r, PlanResult.HYBRID);
@@ -50,13 +81,32 @@ class HybridEndToEndTest {
     }
 
     private static PlanResult.Prediction find(PlanResult r, String method) {
+        return find(r, method, PlanResult.FRAME_SUPINE);
+    }
+
+    private static PlanResult.Prediction find(PlanResult r, String method, String frame) {
         for (PlanResult.Prediction p : r.lesions().get(0).predictions()) {
-            if (p.method().equals(method) && p.frame().equals(PlanResult.FRAME_SUPINE)) {
+            if (p.method().equals(method) && p.frame().equals(frame)) {
                 return p;
             }
         }
-        assertNotNull(null, "no " + method + " prediction in the supine frame");
+        assertNotNull(null, "no " + method + " prediction in the frame " + frame);
         return null;
+    }
+
+    /** Eigenvalues of a symmetric 3×3 (row-major), ascending (EJML, independent of the plan's own code). */
+    private static double[] eigen(double[] cov) {
+        assertNotNull(cov, "a covariance");
+        org.ejml.data.DMatrixRMaj m = new org.ejml.data.DMatrixRMaj(3, 3, true, cov);
+        org.ejml.interfaces.decomposition.EigenDecomposition_F64<org.ejml.data.DMatrixRMaj> evd =
+                org.ejml.dense.row.factory.DecompositionFactory_DDRM.eig(3, false, true);
+        assertTrue(evd.decompose(m), "eigen-decomposition");
+        double[] ev = new double[3];
+        for (int i = 0; i < 3; i++) {
+            ev[i] = evd.getEigenvalue(i).getReal();
+        }
+        java.util.Arrays.sort(ev);
+        return ev;
     }
 
     private static double distance(double[] a, double[] b) {
