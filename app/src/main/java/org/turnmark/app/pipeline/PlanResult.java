@@ -19,14 +19,37 @@ import org.turnmark.app.uncertainty.Sensitivity;
  * @param stageSeconds    wall time per named stage (s), in run order
  * @param model           finite-element model summary
  * @param uncertainty     how the uncertainty was obtained
+ * @param rigidAlignment  the rigid map between the prone and supine image frames; null without a supine image
  * @param lesions         per-lesion results
  * @param flags           quality flags in plain words
  * @param warnings        other warnings (inputs, segmentation, nipples)
  */
 public record PlanResult(String caution, Map<String, String> software, String createdUtc, CaseFile input,
                          Map<String, String> inputSha256, Map<String, Double> stageSeconds, ModelSummary model,
-                         UncertaintySummary uncertainty, List<LesionResult> lesions, List<QualityFlag> flags,
-                         List<String> warnings) {
+                         UncertaintySummary uncertainty, RigidAlignment rigidAlignment, List<LesionResult> lesions,
+                         List<QualityFlag> flags, List<String> warnings) {
+
+    /** A plan without a rigid alignment (no supine image). */
+    public PlanResult(String caution, Map<String, String> software, String createdUtc, CaseFile input,
+                      Map<String, String> inputSha256, Map<String, Double> stageSeconds, ModelSummary model,
+                      UncertaintySummary uncertainty, List<LesionResult> lesions, List<QualityFlag> flags,
+                      List<String> warnings) {
+        this(caution, software, createdUtc, input, inputSha256, stageSeconds, model, uncertainty, null, lesions, flags,
+                warnings);
+    }
+
+    /**
+     * The rigid alignment T⁻¹ that carries the prone image frame (chest wall held in place) into the supine
+     * image frame: the mechanics-only prediction in the supine frame is T⁻¹ of the prone-frame one, and the
+     * hybrid and registration-only registrations start from it.
+     *
+     * @param method           how it was found, in words
+     * @param proneToSupineRas 4×4 affine, row-major, world RAS mm → world RAS mm
+     * @param rotationDeg      its rotation angle (degrees)
+     * @param translationMm    its translation column (mm): where the prone-frame origin lands
+     */
+    public record RigidAlignment(String method, double[] proneToSupineRas, double rotationDeg, double[] translationMm) {
+    }
 
     /** Method names used throughout the outputs. */
     public static final String MECHANICS = "mechanics-only";

@@ -362,7 +362,7 @@ public final class Planner {
         software.put("java", System.getProperty("java.version"));
         PlanResult result = new PlanResult(ResearchUse.FULL, software,
                 Instant.now().truncatedTo(ChronoUnit.SECONDS).toString(), c, hashes, timer.seconds(), ms, us,
-                lesionResults, flags, warnings);
+                reg == null ? null : reg.alignment(), lesionResults, flags, warnings);
         PlanArtifacts art = new PlanArtifacts(prone, supine, labelVolume, segmented, fields, warped,
                 model.proneMesh(), pointFields, ell);
         return new Outcome(result, art);

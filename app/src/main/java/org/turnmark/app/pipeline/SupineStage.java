@@ -59,6 +59,9 @@ final class SupineStage {
     static final double INVERSE_TOLERANCE_MM = 0.01;
     /** Finite-difference step (mm) for the Jacobian of a field map: about a voxel. */
     static final double JACOBIAN_STEP_MM = 1.0;
+    /** How the rigid alignment is found, as plan.json states it. */
+    static final String ALIGNMENT_METHOD = "rigid intensity alignment (LNCC, BOBYQA at about 4x the finest spacing) "
+            + "of the supine image to the predicted supine image (prone image warped by the mechanics), whole image";
 
     private final Affine3D supineToProneFrame;
     private final VectorField hybrid;
@@ -142,7 +145,22 @@ final class SupineStage {
             return out;
         }
 
+        /** The rigid alignment as the plan reports it. */
+        PlanResult.RigidAlignment alignment() {
+            Affine3D inv = s.supineToProneFrame.inverse();
+            double[] m = inv.toRowMajor();
+            double c = (m[0] + m[5] + m[10] - 1) / 2;
+            double deg = Math.toDegrees(Math.acos(Math.max(-1, Math.min(1, c))));
+            return new PlanResult.RigidAlignment(ALIGNMENT_METHOD, m, deg, new double[] {m[3], m[7], m[11]});
+        }
+
         void flags(List<PlanResult.QualityFlag> flags) {
+            PlanResult.RigidAlignment a = alignment();
+            flags.add(new PlanResult.QualityFlag(PlanResult.QualityFlag.OK, "rigid alignment", String.format(Locale.ROOT,
+                    "prone frame (chest wall held in place) to supine image: rotation %.2f deg, translation (%.1f, %.1f, "
+                            + "%.1f) mm; found on the whole image, so the breast shape the mechanics predicts also pulls "
+                            + "on it (its error is part of the mechanics-only supine-frame uncertainty)",
+                    a.rotationDeg(), a.translationMm()[0], a.translationMm()[1], a.translationMm()[2])));
             // folding is judged inside the body of the supine image: the fields are extrapolated
             // into the air around it, where a fold moves no tissue
             boolean[] body = AutoSegmentation.bodyMask(s.supine);

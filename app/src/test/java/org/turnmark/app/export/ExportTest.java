@@ -42,7 +42,10 @@ class ExportTest {
         PlanResult.Prediction p = back.lesions().get(0).predictions().get(0);
         assertArrayEquals(new double[] {-65, 50, 20}, p.positionRasMm(), 0.0);
         assertEquals(7.25, p.errorVsTruthMm(), 0.0);
+        assertArrayEquals(new double[] {1.5, -2, 0.25}, back.rigidAlignment().translationMm(), 0.0);
+        assertEquals(-2, back.rigidAlignment().proneToSupineRas()[7], 0.0);
         assertTrue(Files.readString(f).contains("\"caution\""));
+        assertTrue(Files.readString(f).contains("\"prone_to_supine_ras\""), "snake_case key in plan.json");
     }
 
     @Test

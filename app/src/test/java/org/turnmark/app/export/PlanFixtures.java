@@ -54,6 +54,8 @@ final class PlanFixtures {
         return new PlanResult(ResearchUse.FULL, Map.of("turnmark", "test"), "2026-01-01T00:00:00Z", input,
                 Map.of("prone_image", "00ff"), stages, model,
                 new PlanResult.UncertaintySummary(12, 12, "sobol", 1, List.of("mu_fat", "nu"), List.of("lesion marking")),
+                new PlanResult.RigidAlignment("fixture alignment", new double[] {1, 0, 0, 1.5, 0, 1, 0, -2, 0, 0, 1, 0.25,
+                    0, 0, 0, 1}, 0, new double[] {1.5, -2, 0.25}),
                 List.of(l), List.of(new PlanResult.QualityFlag(PlanResult.QualityFlag.OK, "convergence", "all solves converged")),
                 List.of("nipple detected automatically"));
     }

@@ -42,6 +42,9 @@ class HybridEndToEndTest {
      */
     static final double EIGEN_REL_TOL = 1e-9;
 
+    /** Rows of a rotation are orthonormal to round-off; the affine is composed from a few rotations. */
+    static final double ORTHONORMAL_TOL = 1e-12;
+
     /** Two prior samples: the fewest that give a covariance (with the marking term, of full rank). */
     static final int SAMPLES = 2;
 
@@ -64,6 +67,34 @@ class HybridEndToEndTest {
         for (int i = 0; i < 3; i++) {
             assertEquals(prone[i] + sm * sm, supine[i], EIGEN_REL_TOL * supine[i], "eigenvalue " + i);
         }
+    }
+
+    @Test
+    void reportedRigidAlignmentCarriesTheProneFramePredictionIntoTheSupineFrame() {
+        PlanResult.RigidAlignment a = r.rigidAlignment();
+        assertNotNull(a, "a plan with a supine image reports its rigid alignment");
+        double[] m = a.proneToSupineRas();
+        double[] x = find(r, PlanResult.MECHANICS, PlanResult.FRAME_PRONE).positionRasMm();
+        double[] y = find(r, PlanResult.MECHANICS, PlanResult.FRAME_SUPINE).positionRasMm();
+        for (int i = 0; i < 3; i++) {
+            double yi = m[4 * i] * x[0] + m[4 * i + 1] * x[1] + m[4 * i + 2] * x[2] + m[4 * i + 3];
+            // the plan applies the same affine in double precision: equal to round-off (mm)
+            assertEquals(y[i], yi, ROUNDOFF_MM, "component " + i);
+            assertEquals(m[4 * i + 3], a.translationMm()[i], 0.0);
+            // rigid: orthonormal rotation rows
+            for (int j = 0; j < 3; j++) {
+                double dot = m[4 * i] * m[4 * j] + m[4 * i + 1] * m[4 * j + 1] + m[4 * i + 2] * m[4 * j + 2];
+                assertEquals(i == j ? 1 : 0, dot, ORTHONORMAL_TOL);
+            }
+        }
+        // angle from the trace: tr R = 1 + 2 cos θ
+        double cos = (m[0] + m[5] + m[10] - 1) / 2;
+        assertEquals(Math.toDegrees(Math.acos(Math.min(1, cos))), a.rotationDeg(), 1e-9);
+        // the phantom's torso placement is a rotation of a few degrees (2.84°, truth/truth.json): the alignment
+        // must find a rotation of that order, not none and not a flip
+        assertTrue(a.rotationDeg() > 0.1 && a.rotationDeg() < 10, a.rotationDeg() + " deg");
+        assertTrue(r.flags().stream().anyMatch(f -> f.check().equals("rigid alignment")
+                && f.message().contains("deg") && f.message().contains("mm")));
     }
 
     @Test
