@@ -14,6 +14,10 @@ import java.util.Locale;
 import java.util.Map;
 import java.util.stream.Stream;
 
+import org.ejml.data.DMatrixRMaj;
+import org.ejml.dense.row.CommonOps_DDRM;
+import org.ejml.dense.row.factory.DecompositionFactory_DDRM;
+import org.ejml.interfaces.decomposition.SingularValueDecomposition_F64;
 import org.turnmark.app.export.PlanWriter;
 import org.turnmark.app.phantom.PhantomCase;
 import org.turnmark.app.phantom.PhantomGenerator;
@@ -25,9 +29,14 @@ import org.turnmark.app.pipeline.PlanResult;
 import org.turnmark.app.pipeline.Planner;
 import org.turnmark.app.uncertainty.Coverage;
 import org.turnmark.app.uncertainty.Ellipsoid;
+import org.turnmark.geom.Affine3D;
+import org.turnmark.geom.Grid3;
 import org.turnmark.geom.Parallel;
 import org.turnmark.geom.Progress;
 import org.turnmark.geom.ResearchUse;
+import org.turnmark.registration.nifti.NiftiReader;
+import org.turnmark.registration.volume.VectorField;
+import org.turnmark.registration.volume.Volume;
 
 /**
  * Calibration of the planner's uncertainty ellipsoids against phantom truth (a benchmark, not a test;
@@ -62,6 +71,8 @@ public final class BenchCalibration {
 
     /** Method label of the mechanics-only prediction expressed in the supine image frame. */
     static final String MECHANICS_SUPINE = "mechanics-only (supine frame)";
+    /** Method label of the mechanics-only prediction in the prone image frame (chest wall held in place). */
+    static final String MECHANICS_PRONE = "mechanics-only (prone frame)";
     /** Hybrid counts as "well below" mechanics-only under this fraction of its error (issue wording). */
     static final double WELL_BELOW = 0.7;
 
@@ -81,7 +92,8 @@ public final class BenchCalibration {
     record Row(long seed, String lesion, String method, double[] errorMm, double errorNormMm, Double d2,
                Boolean inside68, Boolean inside95, double[] semiAxes95Mm, int samplesOk, int samplesRequested,
                double planSeconds, double[] covarianceMm2, PlanResult.CovarianceTerms terms,
-               double[] mechanicsSupineMm2, String refinement, Double mechanicsSupineSdMm) {
+               double[] mechanicsSupineMm2, String refinement, Double mechanicsSupineSdMm,
+               Double alignmentErrorMm) {
     }
 
     /** Unique entries of a symmetric 3×3 (row-major) in the order the CSV names them. */
@@ -142,7 +154,7 @@ public final class BenchCalibration {
                     PlanWriter.write(out.result(), out.artifacts(), planDir, true, Progress.NONE);
                     tWrite = (System.nanoTime() - t1) * 1e-9;
                 }
-                List<Row> caseRows = measure(seed, c, out.result(), tPlan);
+                List<Row> caseRows = measure(seed, c, out.result(), tPlan, truePlacement(caseDir));
                 for (Row r : caseRows) {
                     System.out.println(markdown(r));
                 }
@@ -190,8 +202,90 @@ public final class BenchCalibration {
         return (System.nanoTime() - t0) * 1e-9;
     }
 
-    /** Rows for every lesion × supine-frame method of one plan, against the case's inline truth. */
-    static List<Row> measure(long seed, CaseFile c, PlanResult r, double planSeconds) {
+    /**
+     * The phantom's rigid torso placement P (prone image frame → supine image frame), fitted to its truth
+     * displacement on the chest-wall voxels of the prone labels (label 4: rigid by construction) by the
+     * Kabsch least-squares rotation (SVD of the 3×3 cross-covariance, EJML).
+     */
+    static Affine3D truePlacement(Path caseDir) throws IOException {
+        NiftiReader rd = new NiftiReader();
+        Volume labels = rd.readVolume(caseDir.resolve("prone_labels.nii.gz")).volume();
+        VectorField u = rd.readVectorField(caseDir.resolve("truth")
+                .resolve(PhantomWriter.DISPLACEMENT)).field();
+        Grid3 g = labels.grid();
+        if (!g.sameGrid(u.grid(), 1e-6)) {
+            throw new IOException(caseDir + ": truth displacement and prone labels are on different grids");
+        }
+        List<double[]> from = new ArrayList<>();
+        List<double[]> to = new ArrayList<>();
+        float[] l = labels.data();
+        for (int n = 0; n < l.length; n++) {
+            if (l[n] == 4f) {
+                int i = n % g.nx();
+                int j = (n / g.nx()) % g.ny();
+                int k = n / (g.nx() * g.ny());
+                double[] x = g.worldOf(i, j, k);
+                from.add(x);
+                to.add(new double[] {x[0] + u.x()[n], x[1] + u.y()[n], x[2] + u.z()[n]});
+            }
+        }
+        return kabsch(from, to);
+    }
+
+    /** Least-squares rigid map (rotation + translation) taking {@code from} onto {@code to} (Kabsch). */
+    static Affine3D kabsch(List<double[]> from, List<double[]> to) {
+        int n = from.size();
+        if (n < 3) {
+            throw new IllegalArgumentException("at least 3 point pairs are needed, got " + n);
+        }
+        double[] cf = new double[3];
+        double[] ct = new double[3];
+        for (int p = 0; p < n; p++) {
+            for (int a = 0; a < 3; a++) {
+                cf[a] += from.get(p)[a] / n;
+                ct[a] += to.get(p)[a] / n;
+            }
+        }
+        DMatrixRMaj h = new DMatrixRMaj(3, 3);
+        for (int p = 0; p < n; p++) {
+            for (int a = 0; a < 3; a++) {
+                for (int b2 = 0; b2 < 3; b2++) {
+                    h.add(a, b2, (from.get(p)[a] - cf[a]) * (to.get(p)[b2] - ct[b2]));
+                }
+            }
+        }
+        SingularValueDecomposition_F64<DMatrixRMaj> svd =
+                DecompositionFactory_DDRM.svd(3, 3, true, true, false);
+        if (!svd.decompose(h)) {
+            throw new IllegalStateException("SVD failed");
+        }
+        DMatrixRMaj uu = svd.getU(null, false);
+        DMatrixRMaj v = svd.getV(null, false);
+        // R = V diag(1, 1, det(V Uᵀ)) Uᵀ: the nearest proper rotation
+        DMatrixRMaj vut = new DMatrixRMaj(3, 3);
+        CommonOps_DDRM.multTransB(v, uu, vut);
+        double d = Math.signum(CommonOps_DDRM.det(vut));
+        DMatrixRMaj dm = CommonOps_DDRM.diag(1, 1, d);
+        DMatrixRMaj vd = new DMatrixRMaj(3, 3);
+        CommonOps_DDRM.mult(v, dm, vd);
+        DMatrixRMaj r = new DMatrixRMaj(3, 3);
+        CommonOps_DDRM.multTransB(vd, uu, r);
+        double[] t = new double[3];
+        for (int a = 0; a < 3; a++) {
+            t[a] = ct[a] - (r.get(a, 0) * cf[0] + r.get(a, 1) * cf[1] + r.get(a, 2) * cf[2]);
+        }
+        return new Affine3D(r.get(0, 0), r.get(0, 1), r.get(0, 2), t[0], r.get(1, 0), r.get(1, 1),
+                r.get(1, 2), t[1], r.get(2, 0), r.get(2, 1), r.get(2, 2), t[2]);
+    }
+
+    /**
+     * Rows for every lesion × supine-frame method of one plan, against the case's inline truth; with the
+     * true torso placement P also the mechanics-only prediction in the prone frame against P⁻¹(truth), and
+     * on the supine-frame mechanics-only row the error of the plan's rigid alignment at the lesion,
+     * |T⁻¹(q) − P(q)| with q = P⁻¹(truth).
+     */
+    static List<Row> measure(long seed, CaseFile c, PlanResult r, double planSeconds,
+                             Affine3D placement) {
         Map<String, double[]> truth = new LinkedHashMap<>();
         if (c.truth() != null && c.truth().lesions() != null) {
             for (CaseFile.TruthLesion t : c.truth().lesions()) {
@@ -214,14 +308,28 @@ public final class BenchCalibration {
             if (t == null) {
                 throw new IllegalStateException("case has no true supine centroid for lesion " + l.id());
             }
+            double[] q = placement == null ? null : placement.inverse().applyPoint(t[0], t[1], t[2]);
+            Double alignErr = null;
+            if (q != null && r.rigidAlignment() != null) {
+                double[] m = r.rigidAlignment().proneToSupineRas();
+                double d2a = 0;
+                for (int a = 0; a < 3; a++) {
+                    double ya = m[4 * a] * q[0] + m[4 * a + 1] * q[1] + m[4 * a + 2] * q[2] + m[4 * a + 3];
+                    d2a += (ya - t[a]) * (ya - t[a]);
+                }
+                alignErr = Math.sqrt(d2a);
+            }
             for (PlanResult.Prediction p : l.predictions()) {
-                if (!PlanResult.FRAME_SUPINE.equals(p.frame())) {
-                    continue; // the prone-frame prediction has no truth to compare with
+                boolean prone = PlanResult.FRAME_PRONE.equals(p.frame());
+                if (prone && !(q != null && PlanResult.MECHANICS.equals(p.method()))) {
+                    continue; // a prone-frame prediction has a truth only through the phantom's placement
                 }
                 double[] x = p.positionRasMm();
-                double[] e = {t[0] - x[0], t[1] - x[1], t[2] - x[2]};
+                double[] tt = prone ? q : t;
+                double[] e = {tt[0] - x[0], tt[1] - x[1], tt[2] - x[2]};
                 double norm = Math.sqrt(e[0] * e[0] + e[1] * e[1] + e[2] * e[2]);
-                String method = PlanResult.MECHANICS.equals(p.method()) ? MECHANICS_SUPINE : p.method();
+                String method = PlanResult.MECHANICS.equals(p.method()) ? prone ? MECHANICS_PRONE : MECHANICS_SUPINE
+                        : p.method();
                 Double d2 = null;
                 Boolean in68 = null;
                 Boolean in95 = null;
@@ -237,7 +345,7 @@ public final class BenchCalibration {
                 rows.add(new Row(seed, l.id(), method, e, norm, d2, in68, in95, axes, ok, requested, planSeconds,
                         p.covarianceMm2(), p.covarianceTerms(), p.covarianceTerms() == null ? null : mechanicsSupine,
                         l.refinement(), MECHANICS_SUPINE.equals(method) && p.covarianceMm2() != null
-                        ? c.priors().mechanicsSupineSdMm() : null));
+                        ? c.priors().mechanicsSupineSdMm() : null, MECHANICS_SUPINE.equals(method) ? alignErr : null));
             }
         }
         return rows;
@@ -254,7 +362,8 @@ public final class BenchCalibration {
         System.out.println("| method | lesions | inside 68 % | 68 % coverage (95 % CI) | inside 95 % "
                 + "| 95 % coverage (95 % CI) | mean d² | mean error mm | median error mm |");
         System.out.println("|---|---|---|---|---|---|---|---|---|");
-        for (String method : new String[] {MECHANICS_SUPINE, PlanResult.HYBRID, PlanResult.REGISTRATION}) {
+        for (String method : new String[] {MECHANICS_PRONE, MECHANICS_SUPINE, PlanResult.HYBRID,
+            PlanResult.REGISTRATION}) {
             List<Row> m = new ArrayList<>();
             for (Row r : rows) {
                 if (r.method().equals(method)) {
@@ -313,6 +422,14 @@ public final class BenchCalibration {
         System.out.println();
         System.out.printf(Locale.ROOT, "Hybrid error < %.1f × mechanics-only error: %d of %d lesions.%n", WELL_BELOW,
                 below, pairs);
+        double[] align = rows.stream().filter(r -> r.alignmentErrorMm() != null)
+                .mapToDouble(Row::alignmentErrorMm).toArray();
+        if (align.length > 0) {
+            System.out.printf(Locale.ROOT, "Rigid alignment error at the lesion (plan's prone → supine map against the "
+                            + "phantom's torso placement): mean %.2f mm, median %.2f mm, max %.2f mm over %d lesions.%n",
+                    Arrays.stream(align).average().orElse(0), median(align), Arrays.stream(align).max().orElse(0),
+                    align.length);
+        }
         if (!caseTimes.isEmpty()) {
             double[] ph = caseTimes.stream().mapToDouble(t -> t[1]).filter(v -> v > 0).toArray();
             double[] pl = caseTimes.stream().mapToDouble(t -> t[2]).toArray();
@@ -369,7 +486,7 @@ public final class BenchCalibration {
             }
         }
         b.append(",hyb_registration_sd_mm,hyb_marking_weight,hyb_correction_weight,centroid_refined_on_label,"
-                + "mech_supine_sd_mm\n");
+                + "mech_supine_sd_mm,alignment_error_at_lesion_mm\n");
         for (Row r : rows) {
             b.append(r.seed()).append(',').append(r.lesion()).append(',').append(r.method()).append(',')
                     .append(num(r.errorNormMm())).append(',').append(num(r.errorMm()[0])).append(',')
@@ -393,7 +510,8 @@ public final class BenchCalibration {
                     .append(t == null ? "" : num(t.markingWeight())).append(',')
                     .append(t == null ? "" : num(t.correctionWeight())).append(',')
                     .append(r.refinement() != null && r.refinement().startsWith("centroid of label")).append(',')
-                    .append(r.mechanicsSupineSdMm() == null ? "" : num(r.mechanicsSupineSdMm())).append('\n');
+                    .append(r.mechanicsSupineSdMm() == null ? "" : num(r.mechanicsSupineSdMm())).append(',')
+                    .append(r.alignmentErrorMm() == null ? "" : num(r.alignmentErrorMm())).append('\n');
         }
         Path abs = csv.toAbsolutePath();
         Path dir = abs.getParent();
