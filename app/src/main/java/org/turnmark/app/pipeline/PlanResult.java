@@ -41,7 +41,7 @@ public record PlanResult(String caution, Map<String, String> software, String cr
     /**
      * The rigid alignment T⁻¹ that carries the prone image frame (chest wall held in place) into the supine
      * image frame: the mechanics-only prediction in the supine frame is T⁻¹ of the prone-frame one, and the
-     * hybrid and registration-only registrations start from it.
+     * hybrid registration starts from it (the registration-only baseline finds its own rigid start).
      *
      * @param method           how it was found, in words
      * @param proneToSupineRas 4×4 affine, row-major, world RAS mm → world RAS mm
