@@ -1,5 +1,7 @@
 package org.turnmark.app.pipeline;
 
+import java.util.Locale;
+
 import org.turnmark.app.uncertainty.PriorDesign;
 import org.turnmark.geom.Affine3D;
 import org.turnmark.geom.Grid3;
@@ -118,6 +120,42 @@ public final class MechanicsModel {
     }
 
     /**
+     * Tissue pieces not connected to the largest one may hold up to this fraction of the elements and are
+     * then dropped with a warning (the mesher's own default is 1 %). A piece that shares no node with the
+     * largest one never interacts with it in the model, so dropping it leaves the modelled breast's
+     * mechanics unchanged; it only stops points inside it from being mapped, which
+     * {@link Planner} checks for every lesion ({@link #requireModelled}). Such pieces are typically strips of
+     * thin torso fat at the border of the image that a coarse element lattice cuts off (about 5 % of the
+     * elements at 8 mm on the priors-drawn phantoms, docs/benchmarks.md).
+     */
+    static final double MAX_DROPPED_FRACTION = 0.25;
+
+    /**
+     * Checks that a point lies in the modelled tissue: some mesh node within one element edge. A lesion
+     * outside would otherwise be carried by the nearest node of a piece it does not belong to.
+     *
+     * @throws PlanInputException naming the point, its distance and the likely cause
+     */
+    void requireModelled(String what, double[] xRasMm) {
+        double[] p = labelMesh.mesh().xyzMm();
+        double best = Double.POSITIVE_INFINITY;
+        for (int n = 0; n < p.length; n += 3) {
+            double dx = p[n] - xRasMm[0];
+            double dy = p[n + 1] - xRasMm[1];
+            double dz = p[n + 2] - xRasMm[2];
+            best = Math.min(best, dx * dx + dy * dy + dz * dz);
+        }
+        best = Math.sqrt(best);
+        if (best > elementMm) {
+            throw new PlanInputException(String.format(Locale.ROOT, "%s at (%.1f, %.1f, %.1f) mm is %.1f mm from the "
+                    + "modelled tissue (more than one %.3g mm element): it lies in tissue the model does not hold, "
+                    + "most likely a piece not connected to the largest one and dropped (see the warnings); use "
+                    + "smaller elements or check the labels", what, xRasMm[0], xRasMm[1], xRasMm[2], best, elementMm,
+                    elementMm));
+        }
+    }
+
+    /**
      * Meshes the labels and finds the chest-wall boundary.
      *
      * @param grid      label grid
@@ -125,7 +163,8 @@ public final class MechanicsModel {
      * @param elementMm element edge (mm)
      */
     public static MechanicsModel build(Grid3 grid, byte[] labels, double elementMm) {
-        LabelMesh lm = LabelMesher.mesh(grid, labels, MesherConfig.of(elementMm));
+        LabelMesh lm = LabelMesher.mesh(grid, labels, new MesherConfig(elementMm, MesherConfig.DEFAULT_TISSUE_FRACTION,
+                MesherConfig.DEFAULT_LESION_FRACTION, MAX_DROPPED_FRACTION, MesherConfig.DEFAULT_MAX_ELEMENTS));
         MeshSurface surface = MeshSurface.of(lm.mesh());
         ChestWallBoundary.ChestWall wall = ChestWallBoundary.find(lm.mesh(), surface, grid, labels, elementMm);
         // Rim: chest-wall nodes that also lie on a skin face (the edge of the breast base).

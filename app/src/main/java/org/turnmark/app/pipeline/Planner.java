@@ -132,6 +132,9 @@ public final class Planner {
             throw new PlanInputException("cannot build the finite-element model from the labels: " + e.getMessage(), e);
         }
         warnings.addAll(model.labelMesh().warnings());
+        for (LesionInput li : lesions) {
+            model.requireModelled("lesion " + li.mark.id(), li.centroid.rasMm());
+        }
         Surfaces surfaces = Surfaces.of(model.proneMesh(), model.chestWall().nodes());
 
         // Nipples: given, else detected; checked against the skin surface of the mesh.
