@@ -52,6 +52,7 @@ class CaseFileReaderTest {
         assertArrayEquals(new double[] {10, 20, 30}, c.lesions().get(0).positionRasMm());
         assertEquals(CaseFile.ModelOptions.DEFAULT_ELEMENT_SIZE_MM, c.model().elementSizeMm());
         assertEquals(CaseFileReader.DEFAULT_FAT, c.priors().fat());
+        assertEquals(CaseFileReader.DEFAULT_MECHANICS_SUPINE_SD_MM, c.priors().mechanicsSupineSdMm());
         assertEquals(CaseFile.UncertaintyOptions.DEFAULT_SAMPLES, c.uncertainty().samples());
         assertEquals("sobol", c.uncertainty().design());
         assertTrue(c.nipples().isEmpty());
@@ -120,6 +121,14 @@ class CaseFileReaderTest {
                 "}], \"priors\": {\"chest_wall_sliding_probability\": 1.5}}")).key());
         assertEquals("model.element_size_mm", fails(MINIMAL.replace("}]}",
                 "}], \"model\": {\"element_size_mm\": 0}}")).key());
+        assertEquals("priors.mechanics_supine_sd_mm", fails(MINIMAL.replace("}]}",
+                "}], \"priors\": {\"mechanics_supine_sd_mm\": -0.5}}")).key());
+    }
+
+    @Test
+    void givenMechanicsSupineSdIsUsed() throws IOException {
+        CaseFile c = read(MINIMAL.replace("}]}", "}], \"priors\": {\"mechanics_supine_sd_mm\": 2.5}}"));
+        assertEquals(2.5, c.priors().mechanicsSupineSdMm());
     }
 
     @Test
