@@ -21,7 +21,7 @@ import org.turnmark.app.gui.GuiLauncher;
         description = {
             "Opens the desktop window: three orthogonal slice views of the prone image with lesion marks",
             "placed by clicking (world RAS mm), a background plan run with progress and cancel, and the",
-            "predicted supine positions per method with their 95 % ellipsoids. Also reviews an existing",
+            "predicted supine positions per method with their 95 %% ellipsoids. Also reviews an existing",
             "plan output folder. Needs a graphical display (on a server: xvfb-run -a turnmark gui ...).",
             "",
             Caution.SHORT})

@@ -20,6 +20,7 @@ import picocli.CommandLine.Option;
 
 /** {@code turnmark phantom}: generates a synthetic prone/supine case with known truth. */
 @Command(name = "phantom",
+        mixinStandardHelpOptions = true,
         description = {
             "Generates a synthetic prone/supine breast MRI case with known truth (invented anatomy):",
             "images, labels, the true prone->supine displacement field, lesion centroids, nipples and",

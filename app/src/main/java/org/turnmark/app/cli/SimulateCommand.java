@@ -51,6 +51,7 @@ import picocli.CommandLine.Option;
  * see docs/simulate.md.
  */
 @Command(name = "simulate",
+        mixinStandardHelpOptions = true,
         description = {
             "Builds a hexahedral finite-element model of the breast from a label image (0 air, 1 fat,",
             "2 fibroglandular, 3 skin, 4 chest wall, 5 lesion) and solves for the neo-Hookean gravity",
