@@ -17,6 +17,7 @@ import org.turnmark.app.gui.GuiLauncher;
  * or starts empty. Blocks until the window is closed.
  */
 @Command(name = "gui",
+        header = "Opens the desktop window.",
         mixinStandardHelpOptions = true,
         description = {
             "Opens the desktop window: three orthogonal slice views of the prone image with lesion marks",

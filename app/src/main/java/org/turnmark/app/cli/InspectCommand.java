@@ -37,6 +37,7 @@ import picocli.CommandLine.Parameters;
  * naming it and the field at fault; the other files are still inspected and the exit code is 2.
  */
 @Command(name = "inspect",
+        header = "Shows how Turnmark reads NIfTI-1 images.",
         mixinStandardHelpOptions = true,
         description = {
             "Shows how Turnmark reads NIfTI-1 images (.nii, .nii.gz, .hdr/.img): dimensions, spacing (mm),",

@@ -20,6 +20,7 @@ import picocli.CommandLine.Option;
 
 /** {@code turnmark phantom}: generates a synthetic prone/supine case with known truth. */
 @Command(name = "phantom",
+        header = "Generates a synthetic prone/supine case with known truth.",
         mixinStandardHelpOptions = true,
         description = {
             "Generates a synthetic prone/supine breast MRI case with known truth (invented anatomy):",

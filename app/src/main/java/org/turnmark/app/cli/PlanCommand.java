@@ -31,7 +31,9 @@ import org.turnmark.geom.Progress;
  * caution and the report's path on stdout. Exit codes: 0 done, 1 the computation failed, 2 bad input
  * (including an existing output folder without {@code --overwrite}).
  */
-@Command(name = "plan", mixinStandardHelpOptions = true,
+@Command(name = "plan",
+        header = "Predicts supine lesion positions with uncertainty from a case file.",
+        mixinStandardHelpOptions = true,
         description = {"Predicts the supine position of lesions marked on a prone breast MRI, with uncertainty,",
             "and writes plan.json, lesions.csv, NIfTI fields and images, a VTK mesh and a PDF report.", "",
             Caution.SHORT})

@@ -53,6 +53,7 @@ import picocli.CommandLine.Option;
  * {@code summary.json}.
  */
 @Command(name = "register",
+        header = "Registers two images (diffeomorphic, multi-resolution).",
         mixinStandardHelpOptions = true,
         description = {
             "Registers a moving image to a fixed image with a diffeomorphic (stationary velocity field)",

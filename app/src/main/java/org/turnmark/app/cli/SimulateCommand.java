@@ -51,6 +51,7 @@ import picocli.CommandLine.Option;
  * see docs/simulate.md.
  */
 @Command(name = "simulate",
+        header = "Solves the finite-element gravity model on a label image.",
         mixinStandardHelpOptions = true,
         description = {
             "Builds a hexahedral finite-element model of the breast from a label image (0 air, 1 fat,",

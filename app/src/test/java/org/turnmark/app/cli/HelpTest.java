@@ -39,6 +39,7 @@ class HelpTest {
         // picocli passes description lines through String.format: a bare '%' breaks the whole text
         for (CommandLine sub : TurnmarkCommand.build().getSubcommands().values()) {
             CommandLine.Model.CommandSpec spec = sub.getCommandSpec();
+            assertTrue(spec.usageMessage().header().length == 1, spec.name() + ": a one-line header for the command list");
             for (String line : spec.usageMessage().description()) {
                 assertDoesNotThrow(() -> String.format(Locale.ROOT, line), spec.name() + ": " + line);
             }
