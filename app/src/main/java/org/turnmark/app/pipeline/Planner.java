@@ -357,8 +357,14 @@ public final class Planner {
         List<String> keys = new ArrayList<>(List.of(names));
         PlanResult.UncertaintySummary us = new PlanResult.UncertaintySummary(nSamples, samplePositions.size(),
                 c.uncertainty().design(), c.uncertainty().seed(), keys,
-                List.of("lesion marking (isotropic, propagated through the local deformation gradient)",
-                        "registration (isotropic, hybrid only)"));
+                List.of(String.format(Locale.ROOT, "lesion marking (isotropic %.3g mm SD, propagated through the local "
+                                + "deformation gradient; hybrid: only for centroids not refined on a lesion label)",
+                                c.priors().lesionMarkingSdMm()),
+                        String.format(Locale.ROOT, "registration (hybrid only, isotropic: %.3g mm SD plus %.3g x the "
+                                + "squared correction at the lesion / 3)", c.priors().registrationSdMm(),
+                                SupineStage.HYBRID_CORRECTION_WEIGHT),
+                        String.format(Locale.ROOT, "rigid alignment and model error (mechanics-only in the supine frame, "
+                                + "isotropic %.3g mm SD)", c.priors().mechanicsSupineSdMm())));
         Map<String, String> software = new LinkedHashMap<>();
         String v = Planner.class.getPackage().getImplementationVersion();
         software.put("turnmark", v == null ? "development build" : v);
