@@ -176,7 +176,6 @@ public final class AutoSegmentation {
         return new Result(g, labels, notes);
     }
 
-    /** Otsu's threshold over the values where {@code mask} is true (all if null). */
     /**
      * Body (non-air) voxels of an MR image: Otsu's threshold, the largest connected component, holes
      * filled; null if the threshold separates nothing (no contrast).
@@ -205,6 +204,7 @@ public final class AutoSegmentation {
         return body;
     }
 
+    /** Otsu's threshold over the values where {@code mask} is true (all if null). */
     static double otsu(float[] x, boolean[] mask) {
         float lo = Float.POSITIVE_INFINITY;
         float hi = Float.NEGATIVE_INFINITY;

@@ -138,14 +138,8 @@ public final class MechanicsModel {
      */
     void requireModelled(String what, double[] xRasMm) {
         double[] p = labelMesh.mesh().xyzMm();
-        double best = Double.POSITIVE_INFINITY;
-        for (int n = 0; n < p.length; n += 3) {
-            double dx = p[n] - xRasMm[0];
-            double dy = p[n + 1] - xRasMm[1];
-            double dz = p[n + 2] - xRasMm[2];
-            best = Math.min(best, dx * dx + dy * dy + dz * dz);
-        }
-        best = Math.sqrt(best);
+        int n = nearestNode(p, xRasMm);
+        double best = Math.sqrt(squared(p, n, xRasMm));
         if (best > elementMm) {
             throw new PlanInputException(String.format(Locale.ROOT, "%s at (%.1f, %.1f, %.1f) mm is %.1f mm from the "
                     + "modelled tissue (more than one %.3g mm element): it lies in tissue the model does not hold, "
@@ -153,6 +147,27 @@ public final class MechanicsModel {
                     + "smaller elements or check the labels", what, xRasMm[0], xRasMm[1], xRasMm[2], best, elementMm,
                     elementMm));
         }
+    }
+
+    /** Index of the node (3 coordinates per node, mm) nearest to {@code x}; the first of equals. */
+    static int nearestNode(double[] nodesMm, double[] x) {
+        int best = 0;
+        double bd = Double.POSITIVE_INFINITY;
+        for (int n = 0; n < nodesMm.length / 3; n++) {
+            double d = squared(nodesMm, n, x);
+            if (d < bd) {
+                bd = d;
+                best = n;
+            }
+        }
+        return best;
+    }
+
+    private static double squared(double[] nodesMm, int n, double[] x) {
+        double dx = nodesMm[3 * n] - x[0];
+        double dy = nodesMm[3 * n + 1] - x[1];
+        double dz = nodesMm[3 * n + 2] - x[2];
+        return dx * dx + dy * dy + dz * dz;
     }
 
     /**

@@ -283,7 +283,7 @@ public final class Planner {
             if (reg != null) {
                 // Mechanics-only in the supine frame through the rigid alignment, then hybrid and registration-only.
                 double[] xms = reg.proneFrameToSupine(xm);
-                // Σ = R Σ_m Rᵀ + s_a² I: the sampled spread rotated into the supine frame, plus the rigid
+                // Σ = R Σ_m Rᵀ + s_m² I: the sampled spread rotated into the supine frame, plus the rigid
                 // alignment's and the unsampled model error (docs/planner.md, Uncertainty).
                 double[] covMs = covM == null ? null : Covariance3.add(reg.rotateCovariance(covM),
                         Covariance3.isotropic(c.priors().mechanicsSupineSdMm()));
@@ -469,18 +469,7 @@ public final class Planner {
         }
         double[] pn = MechanicsModel.proneNodes(ref);
         double[] sn = MechanicsModel.supineNodes(ref, sup);
-        int best = 0;
-        double bd = Double.POSITIVE_INFINITY;
-        for (int n = 0; n < pn.length / 3; n++) {
-            double dx = pn[3 * n] - x[0];
-            double dy = pn[3 * n + 1] - x[1];
-            double dz = pn[3 * n + 2] - x[2];
-            double d = dx * dx + dy * dy + dz * dz;
-            if (d < bd) {
-                bd = d;
-                best = n;
-            }
-        }
+        int best = MechanicsModel.nearestNode(pn, x);
         return new double[] {x[0] + sn[3 * best] - pn[3 * best], x[1] + sn[3 * best + 1] - pn[3 * best + 1],
             x[2] + sn[3 * best + 2] - pn[3 * best + 2]};
     }

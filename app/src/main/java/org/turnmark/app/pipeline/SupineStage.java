@@ -30,7 +30,9 @@ import org.turnmark.registration.volume.Volume;
  * <ol>
  *   <li>Rigid alignment T (supine image frame → prone image frame) of the supine image to the prone
  *       image warped by the mechanics prediction (the predicted supine shape with the chest wall held
- *       in place): torso and chest wall line up, the residual is what mechanics missed.</li>
+ *       in place), over the whole image. The breast shape pulls on it as well as the torso: on the
+ *       calibration phantoms it misses the true torso placement by about 6 mm at the lesion
+ *       (docs/planner.md, "Rigid alignment (open)").</li>
  *   <li>Hybrid: the residual diffeomorphic registration of the prone image (moving) to the supine
  *       image (fixed), initialised with φ₀ = M⁻¹ ∘ T (M the mechanics prone → supine map), so the
  *       total map y ↦ y + u(y) sends a supine voxel to its prone tissue point.</li>

@@ -34,6 +34,7 @@ import org.turnmark.geom.Grid3;
 import org.turnmark.geom.Parallel;
 import org.turnmark.geom.Progress;
 import org.turnmark.geom.ResearchUse;
+import org.turnmark.mechanics.material.MaterialTable;
 import org.turnmark.registration.nifti.NiftiReader;
 import org.turnmark.registration.volume.VectorField;
 import org.turnmark.registration.volume.Volume;
@@ -220,7 +221,7 @@ public final class BenchCalibration {
         List<double[]> to = new ArrayList<>();
         float[] l = labels.data();
         for (int n = 0; n < l.length; n++) {
-            if (l[n] == 4f) {
+            if (l[n] == MaterialTable.CHEST_WALL) {
                 int i = n % g.nx();
                 int j = (n / g.nx()) % g.ny();
                 int k = n / (g.nx() * g.ny());
