@@ -160,6 +160,7 @@ final class SimulateOutputs {
             rs.put("method", r.method());
             rs.put("iterations", r.iterations());
             rs.put("max_mismatch_mm", r.maxMismatchMm());
+            rs.put("held_nodes", r.heldNodes());
             rs.put("mismatch_history_mm", r.mismatchHistoryMm());
             rs.put("newton_iterations", r.newtonIterations());
             rs.put("linear_iterations", r.linearIterations());

@@ -95,9 +95,11 @@ public final class MechanicsModel {
      * @param residualMm     final max |φ(X) − x_p| (mm)
      * @param lastSolve      diagnostics of the last prone solve
      * @param seconds        wall time
+     * @param heldNodes      nodes held back so that no element of the reference collapses (their
+     *                       mismatch may exceed {@link #REFERENCE_MAX_MISMATCH_MM}); 0 when none
      */
     public record Reference(double[] referenceXyzMm, double[] proneU, int iterations, double residualMm,
-                            SolveResult lastSolve, double seconds) {
+                            SolveResult lastSolve, double seconds, int heldNodes) {
     }
 
     /** Thrown when the reference iteration does not reach its tolerance. */
@@ -280,7 +282,7 @@ public final class MechanicsModel {
         double[] x = rs.maxMismatchMm() <= tol ? subtract(proneMesh.xyzMm(), u)
                 : rs.reference().xyzMm();
         return new Reference(x, u, rs.iterations(), rs.maxMismatchMm(), rs.lastSolve(),
-                (System.nanoTime() - t0) / 1e9);
+                (System.nanoTime() - t0) / 1e9, rs.heldNodes());
     }
 
     /** Anderson depth of the reference iteration (the mechanics module's default). */

@@ -34,6 +34,10 @@ final class QualityFlags {
                 : f("reference state converged in %d iterations: %.0f %% of the nodes within %.2f mm of their prone "
                         + "positions, the furthest %.2f mm", ref.iterations(), ReferenceStateConfig.PERCENTILE,
                         MechanicsModel.REFERENCE_TOLERANCE_MM, ref.residualMm());
+        if (ref.heldNodes() > 0) {
+            refText += f(" (%d nodes were held back where the prone mesh cannot be reproduced without collapsing an "
+                    + "element, typically at the edge of the chest-wall contact)", ref.heldNodes());
+        }
         flags.add(new PlanResult.QualityFlag(PlanResult.QualityFlag.OK, "finite-element convergence",
                 f("%s; supine reload converged in %d load steps (%d Newton iterations, relative residual %.1e)",
                         refText, sup.loadSteps(), sup.newtonIterations(), sup.relativeResidual())));

@@ -52,4 +52,27 @@ class QualityFlagsTest {
         assertFalse(f.message().contains("residual"), f.message());
         assertFalse(f.message().contains("folds"), f.message());
     }
+
+    private static org.turnmark.mechanics.solve.SolveResult solve(double minDetF) {
+        return new org.turnmark.mechanics.solve.SolveResult(new double[3], true, 3, 0, 12, 200, 1e-6, 1e-9, 1e-12, 1,
+                minDetF, 10, new double[0], 0);
+    }
+
+    /**
+     * A reference state that held nodes back says so in the convergence flag, with the count and the
+     * furthest mismatch; one that did not, does not mention it.
+     */
+    @Test
+    void heldBackNodesAreReportedInTheConvergenceFlag() {
+        java.util.List<PlanResult.QualityFlag> flags = new java.util.ArrayList<>();
+        QualityFlags.mechanics(flags, new MechanicsModel.Reference(new double[3], new double[3], 14, 3.24, solve(0.6),
+                20, 12), solve(0.7), 0, 8);
+        String msg = flags.get(0).message();
+        assertEquals("finite-element convergence", flags.get(0).check());
+        assertTrue(msg.contains("the furthest 3.24 mm (12 nodes were held back"), msg);
+        flags.clear();
+        QualityFlags.mechanics(flags, new MechanicsModel.Reference(new double[3], new double[3], 9, 0.4, solve(0.6),
+                20, 0), solve(0.7), 0, 8);
+        assertFalse(flags.get(0).message().contains("held back"), flags.get(0).message());
+    }
 }

@@ -18,8 +18,11 @@ import org.turnmark.mechanics.mesh.HexMesh;
  * @param method             "fixed-point (Anderson m)" or "reverse gravity (biased)"
  * @param lastSolve          diagnostics of the forward solve of the returned reference (load steps,
  *                           residuals, smallest det F)
+ * @param heldNodes          nodes whose step was held back in the returned iterate so that no element of
+ *                           the reference collapses; their mismatch may exceed the coarse bound (see
+ *                           {@link ReferenceStateSolver}); 0 when none
  */
 public record ReferenceStateResult(HexMesh reference, double[] uToLoaded, int iterations, double maxMismatchMm,
                                    double[] mismatchHistoryMm, int newtonIterations, int linearIterations,
-                                   long timeMs, String method, SolveResult lastSolve) {
+                                   long timeMs, String method, SolveResult lastSolve, int heldNodes) {
 }

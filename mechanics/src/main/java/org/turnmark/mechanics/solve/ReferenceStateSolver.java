@@ -4,6 +4,7 @@ import java.util.Arrays;
 
 import org.turnmark.geom.Progress;
 import org.turnmark.mechanics.element.InvertedElementException;
+import org.turnmark.mechanics.element.ReferenceGeometry;
 import org.turnmark.mechanics.material.MaterialTable;
 import org.turnmark.mechanics.mesh.HexMesh;
 
@@ -20,7 +21,11 @@ import org.turnmark.mechanics.mesh.HexMesh;
  * all within that bound. If an accelerated
  * iterate cannot be solved (an element inverts), a damped plain fixed-point step is taken instead and the
  * history is cleared; the step is then relaxed (X ← X + β f with β halved, kept for later
- * steps). Constrained nodes keep their loaded positions along the constrained
+ * steps). Before each forward solve a local safeguard holds back the nodes of any element that the
+ * step would collapse (see {@link #holdBack}): where the observed loaded mesh cannot be reproduced
+ * exactly (typically a strongly compressed element at the edge of the chest-wall contact) the
+ * iteration leaves a local mismatch there instead of inverting the element and stalling everywhere.
+ * Constrained nodes keep their loaded positions along the constrained
  * directions (fixed nodes stay put, sliding nodes stay on their plane).
  *
  * <p>{@link #reverseGravity} is the naive shortcut X = x + u_(−g)(x): exact only in linear
@@ -42,6 +47,23 @@ public final class ReferenceStateSolver {
      * returns to the best iterate and continues with damped plain steps.
      */
     static final double RUNAWAY = 2;
+    /**
+     * An element of a candidate reference whose smallest Gauss-point det(∂X/∂ξ) falls below this
+     * fraction of the loaded element's (and below the last solved iterate's) is collapsing: its nodes
+     * are held back. Breast tissue is nearly incompressible (ν ≈ 0.45–0.5), so a reference element
+     * has about its loaded volume; a fifth of it is far outside any physical state and still well
+     * short of the inversion that stops the forward solve.
+     */
+    static final double MIN_VOLUME_RATIO = 0.2;
+    /** Halvings of a held-back node's step before it returns to the last solved iterate. */
+    static final int HOLD_BACK_HALVINGS = 6;
+    /**
+     * With a coarse rule ({@link ReferenceStateConfig#maxMismatchMm()} above the tolerance), nodes held
+     * back in the accepted iterate may exceed that bound by up to this factor (they still count
+     * against the 1 % allowed above the tolerance): their loaded positions cannot be reproduced without
+     * collapsing an element, and the factor keeps a held region from hiding a gross failure.
+     */
+    static final double HELD_MISMATCH_FACTOR = 2;
     /** Growth of the relaxation after a step that reduced the RMS mismatch (back to 1 at most). */
     static final double RELAXATION_RECOVERY = 1.5;
 
@@ -129,6 +151,13 @@ public final class ReferenceStateSolver {
         final double[] fBest = new double[n];
         final double[] uBest = new double[n];
         double relax = 1;
+        final int[] hex = loaded.hex();
+        final double[] detLoaded = new double[hex.length / 8];
+        ReferenceGeometry.minGaussDet(xObs, hex, detLoaded);
+        final double[] detPrev = new double[detLoaded.length];
+        final double[] detWork = new double[detLoaded.length];
+        int heldBack = 0;
+        final boolean[] held = new boolean[n / 3];   // nodes held back in the current iterate
         for (int k = 0; k < rcfg.maxIterations(); k++) {
             prog.checkCancelled();
             SolveResult r;
@@ -151,6 +180,7 @@ public final class ReferenceStateSolver {
                 for (int i = 0; i < n; i++) {
                     x[i] = xPrev[i] + relax * fPrev[i];
                 }
+                heldBack += holdBack(x, xPrev, hex, detLoaded, detPrev, detWork, held);
                 hist = 0;
                 k--;
                 continue;
@@ -159,7 +189,7 @@ public final class ReferenceStateSolver {
             linear += r.linearIterations();
             u = r.u();
             mismatch = mismatch(xObs, x, u, f);
-            if (converged(f, mismatch, rcfg) && !solver.configuredTolerances()) {
+            if (converged(f, mismatch, rcfg, held) && !solver.configuredTolerances()) {
                 // accept only a forward solve at the configured tolerances
                 solver.setTolerances(0, 0);
                 r = solver.solve(gravityMs2, Progress.NONE, u);
@@ -170,10 +200,16 @@ public final class ReferenceStateSolver {
             }
             history[k] = mismatch;
             prog.update("reference state", (k + 1.0) / rcfg.maxIterations());
-            if (converged(f, mismatch, rcfg)) {
+            if (converged(f, mismatch, rcfg, held)) {
+                int heldNow = 0;
+                for (boolean h : held) {
+                    heldNow += h ? 1 : 0;
+                }
                 return new ReferenceStateResult(loaded.withNodes(x.clone()), u.clone(), k + 1, mismatch,
                         Arrays.copyOf(history, k + 1), newton, linear, (System.nanoTime() - t0) / 1_000_000,
-                        "fixed-point (Anderson " + m + ")", r);
+                        "fixed-point (Anderson " + m + ")" + (heldBack == 0 ? ""
+                                : "; " + heldBack + " node steps held back to keep elements from collapsing"), r,
+                        heldNow);
             }
             // Safeguard: Anderson mixing can go unstable on a strongly nonlinear map (the mismatch
             // then grows step after step). When the RMS mismatch grows, restart the mixing from the
@@ -232,6 +268,7 @@ public final class ReferenceStateSolver {
             }
             System.arraycopy(x, 0, xPrev, 0, n);
             System.arraycopy(f, 0, fPrev, 0, n);
+            ReferenceGeometry.minGaussDet(xPrev, hex, detPrev);
             // damped Anderson: X_{k+1} = X_k + β f_k − (ΔX + β ΔF) γ
             double[] gamma = hist > 0 ? leastSquares(dF, hist, f) : new double[0];
             for (int i = 0; i < n; i++) {
@@ -241,6 +278,7 @@ public final class ReferenceStateSolver {
                 }
                 x[i] = s;
             }
+            heldBack += holdBack(x, xPrev, hex, detLoaded, detPrev, detWork, held);
         }
         throw new SolverDivergedException(String.format("reference-state iteration did not reach %.3g mm in %d"
                 + " forward solves (last max nodal mismatch %.4g mm)", rcfg.toleranceMm(), rcfg.maxIterations(),
@@ -248,14 +286,71 @@ public final class ReferenceStateSolver {
     }
 
     /**
-     * The stopping rule: the max nodal mismatch within {@code maxMismatchMm} and, when that exceeds
-     * the tolerance, the {@link ReferenceStateConfig#PERCENTILE}-th percentile within the tolerance.
+     * Local safeguard of a candidate reference {@code x} (stepped from the solved iterate
+     * {@code xPrev}): while an element's smallest Gauss-point det(∂X/∂ξ) is below both
+     * {@link #MIN_VOLUME_RATIO} × its loaded value and its value at {@code xPrev}, the steps of its
+     * nodes are halved, and after {@link #HOLD_BACK_HALVINGS} halvings those nodes return to
+     * {@code xPrev}. Terminates: an element whose nodes are all at {@code xPrev} has its value there,
+     * so each round after the halvings returns at least one more node. Constrained nodes stay on
+     * their constraint (a convex combination of two admissible positions).
+     *
+     * @param x         candidate reference, modified in place
+     * @param xPrev     last solved reference iterate
+     * @param hex       connectivity
+     * @param detLoaded smallest det per element of the loaded mesh
+     * @param detPrev   smallest det per element at {@code xPrev}
+     * @param det       work array, one value per element
+     * @param held      set to true for the nodes held back by this call, false for all others
+     * @return number of node steps held back (counted once per call and node)
      */
-    static boolean converged(double[] f, double maxMismatch, ReferenceStateConfig rcfg) {
+    static int holdBack(double[] x, double[] xPrev, int[] hex, double[] detLoaded, double[] detPrev, double[] det,
+                        boolean[] held) {
+        int nodes = x.length / 3;
+        Arrays.fill(held, false);
+        int count = 0;
+        for (int round = 0; ; round++) {
+            ReferenceGeometry.minGaussDet(x, hex, det);
+            boolean[] mark = null;
+            for (int e = 0; e < det.length; e++) {
+                if (det[e] < Math.min(MIN_VOLUME_RATIO * detLoaded[e], detPrev[e])) {
+                    if (mark == null) {
+                        mark = new boolean[nodes];
+                    }
+                    for (int a = 0; a < 8; a++) {
+                        mark[hex[8 * e + a]] = true;
+                    }
+                }
+            }
+            if (mark == null) {
+                return count;
+            }
+            double scale = round < HOLD_BACK_HALVINGS ? 0.5 : 0;
+            for (int i = 0; i < nodes; i++) {
+                if (mark[i]) {
+                    if (!held[i]) {
+                        held[i] = true;
+                        count++;
+                    }
+                    for (int c = 3 * i; c < 3 * i + 3; c++) {
+                        x[c] = xPrev[c] + scale * (x[c] - xPrev[c]);
+                    }
+                }
+            }
+        }
+    }
+
+    /**
+     * The stopping rule: every node within the tolerance; or, when {@code maxMismatchMm} exceeds the
+     * tolerance, the {@link ReferenceStateConfig#PERCENTILE}-th percentile within the tolerance and
+     * every node within {@code maxMismatchMm}, except that nodes held back in this iterate
+     * ({@code held}, may be null) may reach {@link #HELD_MISMATCH_FACTOR} times that bound.
+     */
+    static boolean converged(double[] f, double maxMismatch, ReferenceStateConfig rcfg, boolean[] held) {
         if (maxMismatch <= rcfg.toleranceMm()) {
             return true;
         }
-        if (maxMismatch > rcfg.maxMismatchMm()) {
+        if (rcfg.maxMismatchMm() <= rcfg.toleranceMm()
+                || maxMismatch > HELD_MISMATCH_FACTOR * rcfg.maxMismatchMm()) {
             return false;
         }
         int nodes = f.length / 3;
@@ -264,6 +359,9 @@ public final class ReferenceStateSolver {
             double m = Math.sqrt(f[i] * f[i] + f[i + 1] * f[i + 1] + f[i + 2] * f[i + 2]);
             if (m > rcfg.toleranceMm()) {
                 above++;
+            }
+            if (m > rcfg.maxMismatchMm() && (held == null || !held[i / 3])) {
+                return false;
             }
         }
         return above <= nodes * (1 - ReferenceStateConfig.PERCENTILE / 100);
@@ -311,7 +409,7 @@ public final class ReferenceStateSolver {
         }
         return new ReferenceStateResult(loaded.withNodes(x), fwd.u(), 0, mismatch, new double[] {mismatch},
                 back.newtonIterations() + fwd.newtonIterations(), back.linearIterations() + fwd.linearIterations(),
-                (System.nanoTime() - t0) / 1_000_000, "reverse gravity (biased)", fwd);
+                (System.nanoTime() - t0) / 1_000_000, "reverse gravity (biased)", fwd, 0);
     }
 
     /** min ‖f − Σ γ_j dF_j‖ by normal equations with a tiny Tikhonov term (m ≤ 20 columns). */

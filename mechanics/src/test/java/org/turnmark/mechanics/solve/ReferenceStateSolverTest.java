@@ -134,18 +134,31 @@ class ReferenceStateSolverTest {
         }
         ReferenceStateConfig strict = new ReferenceStateConfig(0.5, 40, 5);
         ReferenceStateConfig lenient = new ReferenceStateConfig(0.5, 40, 5, 2.0);
-        assertTrue(ReferenceStateSolver.converged(f, 0.3, strict));
+        assertTrue(ReferenceStateSolver.converged(f, 0.3, strict, null));
         for (int n = 0; n < 10; n++) {
             f[3 * n + 1] = 1.5; // 10 nodes (1 %) at |f| = 1.53 mm
         }
         double max = Math.hypot(0.3, 1.5);
-        assertTrue(!ReferenceStateSolver.converged(f, max, strict));
-        assertTrue(ReferenceStateSolver.converged(f, max, lenient));
+        assertTrue(!ReferenceStateSolver.converged(f, max, strict, null));
+        assertTrue(ReferenceStateSolver.converged(f, max, lenient, null));
         f[3 * 10 + 1] = 1.5; // an 11th node: more than 1 %
-        assertTrue(!ReferenceStateSolver.converged(f, max, lenient));
+        assertTrue(!ReferenceStateSolver.converged(f, max, lenient, null));
         f[3 * 10 + 1] = 0;
         f[1] = 2.5; // one node beyond the bound
-        assertTrue(!ReferenceStateSolver.converged(f, Math.hypot(0.3, 2.5), lenient));
+        assertTrue(!ReferenceStateSolver.converged(f, Math.hypot(0.3, 2.5), lenient, null));
+        // ... unless that node was held back to keep an element from collapsing, up to twice the bound
+        boolean[] held = new boolean[nodes];
+        held[0] = true;
+        assertTrue(ReferenceStateSolver.converged(f, Math.hypot(0.3, 2.5), lenient, held));
+        assertTrue(!ReferenceStateSolver.converged(f, Math.hypot(0.3, 2.5), strict, held),
+                "the strict rule admits no exception");
+        f[1] = 4.5;
+        assertTrue(!ReferenceStateSolver.converged(f, Math.hypot(0.3, 4.5), lenient, held),
+                "beyond twice the bound even a held node fails");
+        held[0] = false;
+        held[1] = true; // held, but not the node beyond the bound
+        f[1] = 2.5;
+        assertTrue(!ReferenceStateSolver.converged(f, Math.hypot(0.3, 2.5), lenient, held));
     }
 
     /**
@@ -158,5 +171,105 @@ class ReferenceStateSolverTest {
         SolverDivergedException e = org.junit.jupiter.api.Assertions.assertThrows(SolverDivergedException.class,
                 () -> ReferenceStateSolver.solve(prone, SOFT, bc, PRONE, SolverConfig.defaults(), rcfg, Progress.NONE));
         assertTrue(e.getMessage().contains("stalled"), e.getMessage());
+    }
+
+    /** Two unit cubes side by side along x (VTK node order), 12 nodes. */
+    private static double[] twoCubes() {
+        double[] x = new double[36];
+        for (int k = 0; k < 2; k++) {
+            for (int j = 0; j < 2; j++) {
+                for (int i = 0; i < 3; i++) {
+                    int n = i + 3 * j + 6 * k;
+                    x[3 * n] = i;
+                    x[3 * n + 1] = j;
+                    x[3 * n + 2] = k;
+                }
+            }
+        }
+        return x;
+    }
+
+    private static final int[] TWO_CUBES_HEX = {0, 1, 4, 3, 6, 7, 10, 9, 1, 2, 5, 4, 7, 8, 11, 10};
+
+    /**
+     * The local safeguard: a step that would invert the second cube (its far face pushed through the
+     * shared face) is pulled back until no element falls below a fifth of its loaded size; the first
+     * cube's free node, whose element is not collapsing, keeps its whole step; the held nodes are
+     * exactly those of the collapsing element.
+     */
+    @Test
+    void holdBackStopsAnElementFromCollapsingAndLeavesTheRestAlone() {
+        double[] loaded = twoCubes();
+        int[] hex = TWO_CUBES_HEX;
+        double[] detLoaded = new double[2];
+        org.turnmark.mechanics.element.ReferenceGeometry.minGaussDet(loaded, hex, detLoaded);
+        // a unit cube maps from [-1, 1]^3: det(∂X/∂ξ) = 1/8 at every Gauss point
+        assertEquals(0.125, detLoaded[0], 1e-15);
+        assertEquals(0.125, detLoaded[1], 1e-15);
+        double[] prev = loaded.clone();
+        double[] x = loaded.clone();
+        for (int n : new int[] {2, 5, 8, 11}) {
+            x[3 * n] -= 1.5;     // x = 0.5: through the shared face at x = 1
+        }
+        x[3 * 0 + 2] += 0.1;   // node 0 (first cube only) moves a little
+        double[] det = new double[2];
+        boolean[] held = new boolean[12];
+        int count = ReferenceStateSolver.holdBack(x, prev, hex, detLoaded, detLoaded.clone(), det, held);
+        org.turnmark.mechanics.element.ReferenceGeometry.minGaussDet(x, hex, det);
+        assertTrue(det[1] >= ReferenceStateSolver.MIN_VOLUME_RATIO * detLoaded[1], "second cube " + det[1]);
+        assertTrue(det[0] >= ReferenceStateSolver.MIN_VOLUME_RATIO * detLoaded[0], "first cube " + det[0]);
+        assertEquals(8, count, "the nodes of the collapsing element");
+        for (int n = 0; n < 12; n++) {
+            boolean inSecond = n % 3 != 0;
+            assertEquals(inSecond, held[n], "node " + n);
+        }
+        assertEquals(0.1, x[2], 0, "node 0 keeps its step");
+        // the far face moved back towards its previous place but not all the way: a halved step
+        assertTrue(x[3 * 2] > 0.5 && x[3 * 2] < 2, "far face at x = " + x[3 * 2]);
+    }
+
+    /** A step that does not collapse anything is left exactly as it is. */
+    @Test
+    void holdBackLeavesAHarmlessStepUntouched() {
+        double[] loaded = twoCubes();
+        double[] detLoaded = new double[2];
+        org.turnmark.mechanics.element.ReferenceGeometry.minGaussDet(loaded, TWO_CUBES_HEX, detLoaded);
+        double[] x = loaded.clone();
+        for (int i = 0; i < x.length; i++) {
+            x[i] *= 1.3;    // a uniform stretch
+        }
+        double[] before = x.clone();
+        boolean[] held = new boolean[12];
+        held[3] = true;     // stale flags are cleared
+        assertEquals(0, ReferenceStateSolver.holdBack(x, loaded, TWO_CUBES_HEX, detLoaded, detLoaded.clone(),
+                new double[2], held));
+        assertTrue(java.util.Arrays.equals(before, x));
+        for (boolean h : held) {
+            assertTrue(!h);
+        }
+    }
+
+    /**
+     * The per-element determinant agrees with the Gauss weights of the full reference geometry on a
+     * distorted mesh (2×2×2 Gauss weights are 1, so weight = det at each Gauss point).
+     */
+    @Test
+    void minGaussDetMatchesTheReferenceGeometry() {
+        double[] x = twoCubes();
+        java.util.SplittableRandom rnd = new java.util.SplittableRandom(7);
+        for (int i = 0; i < x.length; i++) {
+            x[i] += 0.15 * (rnd.nextDouble() - 0.5);
+        }
+        double[] det = new double[2];
+        org.turnmark.mechanics.element.ReferenceGeometry.minGaussDet(x, TWO_CUBES_HEX, det);
+        org.turnmark.mechanics.element.ReferenceGeometry g = org.turnmark.mechanics.element.ReferenceGeometry.of(x,
+                TWO_CUBES_HEX);
+        for (int e = 0; e < 2; e++) {
+            double min = Double.POSITIVE_INFINITY;
+            for (int q = 0; q < 8; q++) {
+                min = Math.min(min, g.weight()[8 * e + q]);
+            }
+            assertEquals(min, det[e], 1e-15, "element " + e);
+        }
     }
 }
