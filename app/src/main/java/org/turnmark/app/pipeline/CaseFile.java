@@ -107,11 +107,13 @@ public record CaseFile(
      * gravity direction deviates from the nominal posture by an isotropic angle with the given
      * standard deviation; the lesion mark and the registration have isotropic Gaussian errors; the
      * mechanics-only prediction carried into the supine image frame has an isotropic Gaussian error for
-     * the rigid alignment and the model error the other priors do not span.
+     * the rigid alignment and the model error the other priors do not span; in the prone image frame, one
+     * for the model error alone.
      */
     @JsonInclude(JsonInclude.Include.NON_NULL)
     @JsonPropertyOrder({"fat", "fibroglandular", "skin", "lesion", "nu", "chest_wall_sliding_probability",
-        "gravity_direction_sd_deg", "lesion_marking_sd_mm", "registration_sd_mm", "mechanics_supine_sd_mm"})
+        "gravity_direction_sd_deg", "lesion_marking_sd_mm", "registration_sd_mm", "mechanics_supine_sd_mm",
+        "mechanics_prone_sd_mm"})
     public record Priors(
             @JsonProperty("fat") TissuePrior fat,
             @JsonProperty("fibroglandular") TissuePrior fibroglandular,
@@ -122,7 +124,8 @@ public record CaseFile(
             @JsonProperty("gravity_direction_sd_deg") Double gravityDirectionSdDeg,
             @JsonProperty("lesion_marking_sd_mm") Double lesionMarkingSdMm,
             @JsonProperty("registration_sd_mm") Double registrationSdMm,
-            @JsonProperty("mechanics_supine_sd_mm") Double mechanicsSupineSdMm) {
+            @JsonProperty("mechanics_supine_sd_mm") Double mechanicsSupineSdMm,
+            @JsonProperty("mechanics_prone_sd_mm") Double mechanicsProneSdMm) {
     }
 
     /** Log-normal prior on a tissue's shear modulus, and its density. */

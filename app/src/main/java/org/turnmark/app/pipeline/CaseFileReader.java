@@ -70,6 +70,12 @@ public final class CaseFileReader {
      * not used for the fit (docs/benchmarks.md, "Calibration of the 95 % ellipsoid").
      */
     static final double DEFAULT_MECHANICS_SUPINE_SD_MM = 1.12;
+    /**
+     * Isotropic error (mm) added to the mechanics-only prediction in the prone image frame (chest wall held
+     * in place): the model error the sampled priors do not span. 0: the prone-frame ellipsoid spans the
+     * sampled priors only.
+     */
+    static final double DEFAULT_MECHANICS_PRONE_SD_MM = 0;
 
     /** Largest sample count accepted (a plan with more would take hours). */
     public static final int MAX_SAMPLES = 1024;
@@ -340,7 +346,7 @@ public final class CaseFileReader {
         }
 
         private Priors priors(Priors p) {
-            Priors q = p == null ? new Priors(null, null, null, null, null, null, null, null, null, null) : p;
+            Priors q = p == null ? new Priors(null, null, null, null, null, null, null, null, null, null, null) : p;
             TissuePrior fat = tissue("priors.fat", q.fat(), DEFAULT_FAT);
             TissuePrior gland = tissue("priors.fibroglandular", q.fibroglandular(), DEFAULT_FIBROGLANDULAR);
             TissuePrior skin = tissue("priors.skin", q.skin(), DEFAULT_SKIN);
@@ -357,7 +363,9 @@ public final class CaseFileReader {
             double rsd = nonNegative("priors.registration_sd_mm", q.registrationSdMm(), DEFAULT_REGISTRATION_SD_MM, 50);
             double msd = nonNegative("priors.mechanics_supine_sd_mm", q.mechanicsSupineSdMm(),
                     DEFAULT_MECHANICS_SUPINE_SD_MM, 50);
-            return new Priors(fat, gland, skin, lesion, nu, ps, gsd, lsd, rsd, msd);
+            double psd = nonNegative("priors.mechanics_prone_sd_mm", q.mechanicsProneSdMm(),
+                    DEFAULT_MECHANICS_PRONE_SD_MM, 50);
+            return new Priors(fat, gland, skin, lesion, nu, ps, gsd, lsd, rsd, msd, psd);
         }
 
         private double nonNegative(String key, Double v, double def, double max) {

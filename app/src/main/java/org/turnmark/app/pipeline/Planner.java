@@ -278,7 +278,10 @@ public final class Planner {
             }
             double[] nipSup = mapOrNearest(mev, nip, model, ref, sup);
             Descriptors.Descriptor dSup = describe(li.side, xm, nipSup, surfaces, supNodes);
-            preds.add(prediction(PlanResult.MECHANICS, PlanResult.FRAME_PRONE, x0, xm, covM, dSup, rank, null,
+            // Prone frame: Σ_m + s_p² I, the sampled spread plus the model error it does not span
+            double[] covProne = covM == null ? null : Covariance3.add(covM,
+                    Covariance3.isotropic(c.priors().mechanicsProneSdMm()));
+            preds.add(prediction(PlanResult.MECHANICS, PlanResult.FRAME_PRONE, x0, xm, covProne, dSup, rank, null,
                     ellProne));
             if (reg != null) {
                 // Mechanics-only in the supine frame through the rigid alignment, then hybrid and registration-only.
@@ -364,7 +367,9 @@ public final class Planner {
                                 + "squared correction at the lesion / 3)", c.priors().registrationSdMm(),
                                 SupineStage.HYBRID_CORRECTION_WEIGHT),
                         String.format(Locale.ROOT, "rigid alignment and model error (mechanics-only in the supine frame, "
-                                + "isotropic %.3g mm SD)", c.priors().mechanicsSupineSdMm())));
+                                + "isotropic %.3g mm SD)", c.priors().mechanicsSupineSdMm()),
+                        String.format(Locale.ROOT, "model error (mechanics-only in the prone frame, isotropic %.3g mm SD)",
+                                c.priors().mechanicsProneSdMm())));
         Map<String, String> software = new LinkedHashMap<>();
         String v = Planner.class.getPackage().getImplementationVersion();
         software.put("turnmark", v == null ? "development build" : v);

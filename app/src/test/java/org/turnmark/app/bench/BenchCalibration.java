@@ -93,7 +93,7 @@ public final class BenchCalibration {
     record Row(long seed, String lesion, String method, double[] errorMm, double errorNormMm, Double d2,
                Boolean inside68, Boolean inside95, double[] semiAxes95Mm, int samplesOk, int samplesRequested,
                double planSeconds, double[] covarianceMm2, PlanResult.CovarianceTerms terms,
-               double[] mechanicsSupineMm2, String refinement, Double mechanicsSupineSdMm,
+               double[] mechanicsSupineMm2, String refinement, Double mechanicsModelSdMm,
                Double alignmentErrorMm) {
     }
 
@@ -345,8 +345,9 @@ public final class BenchCalibration {
                 }
                 rows.add(new Row(seed, l.id(), method, e, norm, d2, in68, in95, axes, ok, requested, planSeconds,
                         p.covarianceMm2(), p.covarianceTerms(), p.covarianceTerms() == null ? null : mechanicsSupine,
-                        l.refinement(), MECHANICS_SUPINE.equals(method) && p.covarianceMm2() != null
-                        ? c.priors().mechanicsSupineSdMm() : null, MECHANICS_SUPINE.equals(method) ? alignErr : null));
+                        l.refinement(), p.covarianceMm2() == null ? null : MECHANICS_SUPINE.equals(method)
+                        ? c.priors().mechanicsSupineSdMm() : MECHANICS_PRONE.equals(method)
+                        ? c.priors().mechanicsProneSdMm() : null, MECHANICS_SUPINE.equals(method) ? alignErr : null));
             }
         }
         return rows;
@@ -474,11 +475,12 @@ public final class BenchCalibration {
     private static void writeCsv(Path csv, List<Row> rows) throws IOException {
         StringBuilder b = new StringBuilder();
         b.append("# ").append(ResearchUse.SHORT).append('\n');
-        b.append("# errors (truth - prediction) and covariances in the supine image frame, world RAS+ mm / mm2; "
-                + "cov_*: the prediction's covariance; hybrid rows: hyb_marking_* (marking term), hyb_mechanics_* "
-                + "(mechanics-only covariance), hyb_registration_sd_mm; cov = marking_weight * marking + (sd^2 + "
-                + "correction_weight * |hybrid - mechanics-only position|^2 / 3) I; mechanics-only rows: cov = sampled "
-                + "covariance rotated into the supine frame + mech_supine_sd_mm^2 I\n");
+        b.append("# errors (truth - prediction) and covariances in the supine image frame (prone-frame rows: the "
+                + "prone image frame), world RAS+ mm / mm2; cov_*: the prediction's covariance; hybrid rows: "
+                + "hyb_marking_* (marking term), hyb_mechanics_* (mechanics-only covariance), hyb_registration_sd_mm; "
+                + "cov = marking_weight * marking + (sd^2 + correction_weight * |hybrid - mechanics-only position|^2 / 3)"
+                + " I; mechanics-only rows: cov = sampled covariance (rotated into the supine frame for supine-frame "
+                + "rows) + mech_model_sd_mm^2 I\n");
         b.append("seed,lesion,method,error_mm,error_x_mm,error_y_mm,error_z_mm,d2,inside_68,inside_95,"
                 + "semi_axis95_1_mm,semi_axis95_2_mm,semi_axis95_3_mm,samples_ok,samples_requested,plan_s");
         for (String prefix : new String[] {"cov_", "hyb_marking_", "hyb_mechanics_"}) {
@@ -487,7 +489,7 @@ public final class BenchCalibration {
             }
         }
         b.append(",hyb_registration_sd_mm,hyb_marking_weight,hyb_correction_weight,centroid_refined_on_label,"
-                + "mech_supine_sd_mm,alignment_error_at_lesion_mm\n");
+                + "mech_model_sd_mm,alignment_error_at_lesion_mm\n");
         for (Row r : rows) {
             b.append(r.seed()).append(',').append(r.lesion()).append(',').append(r.method()).append(',')
                     .append(num(r.errorNormMm())).append(',').append(num(r.errorMm()[0])).append(',')
@@ -511,7 +513,7 @@ public final class BenchCalibration {
                     .append(t == null ? "" : num(t.markingWeight())).append(',')
                     .append(t == null ? "" : num(t.correctionWeight())).append(',')
                     .append(r.refinement() != null && r.refinement().startsWith("centroid of label")).append(',')
-                    .append(r.mechanicsSupineSdMm() == null ? "" : num(r.mechanicsSupineSdMm())).append(',')
+                    .append(r.mechanicsModelSdMm() == null ? "" : num(r.mechanicsModelSdMm())).append(',')
                     .append(r.alignmentErrorMm() == null ? "" : num(r.alignmentErrorMm())).append('\n');
         }
         Path abs = csv.toAbsolutePath();

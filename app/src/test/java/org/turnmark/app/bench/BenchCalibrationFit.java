@@ -36,10 +36,12 @@ import org.turnmark.geom.ResearchUse;
  * method, w on a grid and then by Brent's method around the best grid point. Standard errors from the
  * numerical Hessian of the negative log-likelihood (observed information) at the optimum.
  *
- * <p>Mechanics-only (supine frame): e_i ~ N(0, Σ_m,i + s_m² I) with Σ_m,i the sampled covariance rotated
- * into the supine frame (the CSV's cov_* less the s_m² the plan added, column mech_supine_sd_mm; CSVs
- * written before that column existed hold Σ_m,i alone) and s_m the isotropic alignment and model error.
- * The same profile fit with Σ_m,i in the place of K (weight 1) and no shape term.
+ * <p>Mechanics-only, each frame on its own: e_i ~ N(0, Σ_m,i + s² I) with Σ_m,i the sampled covariance
+ * (rotated into the supine frame for the supine-frame rows; the CSV's cov_* less the s² the plan added,
+ * column mech_model_sd_mm, earlier mech_supine_sd_mm; CSVs written before such a column existed hold
+ * Σ_m,i alone) and s the isotropic term of that frame: s_m (supine frame: the rigid alignment's error and
+ * the model error) or s_p (prone frame: the model error). The same profile fit with Σ_m,i in the place of
+ * K (weight 1) and no shape term.
  *
  * <pre>
  * java -cp app/target/turnmark.jar:app/target/test-classes org.turnmark.app.bench.BenchCalibrationFit \
@@ -246,12 +248,13 @@ public final class BenchCalibrationFit {
     }
 
     /**
-     * Reads the mechanics-only (supine frame) rows of a calibration CSV with a covariance, as cases whose
+     * Reads the mechanics-only rows of one frame ({@link BenchCalibration#MECHANICS_SUPINE} or
+     * {@link BenchCalibration#MECHANICS_PRONE}) of a calibration CSV with a covariance, as cases whose
      * marking term (weight 1) is the sampled covariance Σ_m: the row's covariance less the isotropic term
-     * the plan added (column mech_supine_sd_mm, 0 when the column is absent or empty). Fit them with
-     * {@link #profileSd}(cases, 0).
+     * the plan added (column mech_model_sd_mm, in CSVs written before it mech_supine_sd_mm; 0 when the
+     * column is absent or empty). Fit them with {@link #profileSd}(cases, 0).
      */
-    static List<Case> readMechanics(Path csv) throws IOException {
+    static List<Case> readMechanics(Path csv, String method) throws IOException {
         Table t = Table.read(csv);
         Map<String, Integer> col = t.col();
         for (String need : new String[] {"seed", "method", "error_x_mm", "cov_xx_mm2"}) {
@@ -260,11 +263,11 @@ public final class BenchCalibrationFit {
                         + "is expected)");
             }
         }
-        Integer sdCol = col.get("mech_supine_sd_mm");
+        Integer sdCol = col.containsKey("mech_model_sd_mm") ? col.get("mech_model_sd_mm") : col.get("mech_supine_sd_mm");
         List<Case> out = new ArrayList<>();
         for (int r = 0; r < t.rows().size(); r++) {
             String[] f = t.rows().get(r);
-            if (!BenchCalibration.MECHANICS_SUPINE.equals(f[col.get("method")]) || f[col.get("cov_xx_mm2")].isEmpty()) {
+            if (!method.equals(f[col.get("method")]) || f[col.get("cov_xx_mm2")].isEmpty()) {
                 continue;
             }
             try {
@@ -423,10 +426,10 @@ public final class BenchCalibrationFit {
         return out;
     }
 
-    private static List<double[]> readAllD2(List<Path> csvs) throws IOException {
+    private static List<double[]> readAllD2(List<Path> csvs, String method) throws IOException {
         List<double[]> out = new ArrayList<>();
         for (Path p : csvs) {
-            out.addAll(readD2(p, BenchCalibration.MECHANICS_SUPINE));
+            out.addAll(readD2(p, method));
         }
         return out;
     }
@@ -445,6 +448,7 @@ public final class BenchCalibrationFit {
         Double plannerSd = null;
         Double plannerWeight = null;
         Double plannerMechSd = null;
+        Double plannerProneSd = null;
         for (int i = 0; i + 1 < args.length; i += 2) {
             String v = args[i + 1];
             switch (args[i]) {
@@ -465,13 +469,14 @@ public final class BenchCalibrationFit {
                 case "--planner-sd-mm" -> plannerSd = Double.parseDouble(v);
                 case "--planner-weight" -> plannerWeight = Double.parseDouble(v);
                 case "--planner-mech-sd-mm" -> plannerMechSd = Double.parseDouble(v);
+                case "--planner-prone-sd-mm" -> plannerProneSd = Double.parseDouble(v);
                 default -> throw new IllegalArgumentException("unknown option " + args[i]);
             }
         }
         if (csvs.isEmpty() || fitRange == null || checkRanges.isEmpty()) {
             System.err.println("usage: BenchCalibrationFit --csv FILE[,FILE...] --fit FROM-TO --check FROM-TO[,FROM-TO...] "
                     + "[--shape correction|mechanics] [--compare-sd-mm 1.5 --compare-weight 0.25] "
-                    + "[--planner-sd-mm S --planner-weight W] [--planner-mech-sd-mm S_M]");
+                    + "[--planner-sd-mm S --planner-weight W] [--planner-mech-sd-mm S_M] [--planner-prone-sd-mm S_P]");
             System.exit(2);
             return;
         }
@@ -496,15 +501,25 @@ public final class BenchCalibrationFit {
                             : "mechanics-only covariance", x.registrationSdMm(), x.sdSeMm(), x.weight(), x.weightSe(),
                     x.negLogLik(), 2 * x.negLogLik() + 4);
         }
-        List<Case> mechAll = new ArrayList<>();
-        for (Path p : csvs) {
-            mechAll.addAll(readMechanics(p));
+        String[] frames = {BenchCalibration.MECHANICS_SUPINE, BenchCalibration.MECHANICS_PRONE};
+        Double[] plannerFrameSd = {plannerMechSd, plannerProneSd};
+        List<List<Case>> mechAll = new ArrayList<>();
+        double[] sMech = new double[frames.length];
+        for (int fr = 0; fr < frames.length; fr++) {
+            List<Case> all1 = new ArrayList<>();
+            for (Path p : csvs) {
+                all1.addAll(readMechanics(p, frames[fr]));
+            }
+            mechAll.add(all1);
+            List<Case> mechFit = select(all1, fitRange);
+            if (mechFit.isEmpty()) {
+                continue;
+            }
+            sMech[fr] = profileSd(mechFit, 0);
+            System.out.printf(Locale.ROOT, "%s, %d lesions: ML fit Σ_m + s² I: s = %.3f mm (SE %.3f mm), −log L = %.3f "
+                    + "(Σ_m alone: %.3f)%n", frames[fr], mechFit.size(), sMech[fr],
+                    sdStandardError(mechFit, sMech[fr], 0), negLogLik(mechFit, sMech[fr], 0), negLogLik(mechFit, 0, 0));
         }
-        List<Case> mechFit = select(mechAll, fitRange);
-        double sMech = profileSd(mechFit, 0);
-        System.out.printf(Locale.ROOT, "mechanics-only (supine frame), %d lesions: ML fit Σ_m + s_m² I: s_m = %.3f mm "
-                + "(SE %.3f mm), −log L = %.3f (Σ_m alone: %.3f)%n", mechFit.size(), sMech,
-                sdStandardError(mechFit, sMech, 0), negLogLik(mechFit, sMech, 0), negLogLik(mechFit, 0, 0));
         double sIso = profileSd(fitSet, 0);
         System.out.printf(Locale.ROOT, "ML fit, w = 0: s = %.3f mm, −log L = %.3f, AIC = %.2f%n", sIso,
                 negLogLik(fitSet, sIso, 0), 2 * negLogLik(fitSet, sIso, 0) + 2);
@@ -515,21 +530,26 @@ public final class BenchCalibrationFit {
         List<long[]> sets = new ArrayList<>();
         sets.add(fitRange);
         sets.addAll(checkRanges);
-        List<double[]> mech = readAllD2(csvs);
         String shapeName = shape == Shape.CORRECTION ? "‖δ‖²/3 I" : "Σ_m";
         for (int k = 0; k < sets.size(); k++) {
             long[] r = sets.get(k);
             String n = name(r, k == 0 ? "fit" : "held out");
             List<Case> cs = select(all, r);
             List<Case> csM = select(allM, r);
-            System.out.println(row("mechanics-only (supine frame), as the plans computed it", n, checkD2(mech, r)));
-            List<Case> ms = select(mechAll, r);
-            System.out.println(row("mechanics-only (supine frame), Σ_m alone", n, check(ms, 0, 0)));
-            System.out.println(row(String.format(Locale.ROOT, "mechanics-only (supine frame), ML fit: Σ_m + %.3f² I",
-                    sMech), n, check(ms, sMech, 0)));
-            if (plannerMechSd != null) {
-                System.out.println(row(String.format(Locale.ROOT, "mechanics-only (supine frame), planner default: "
-                        + "Σ_m + %s² I", plannerMechSd), n, check(ms, plannerMechSd, 0)));
+            for (int fr = 0; fr < frames.length; fr++) {
+                List<Case> ms = select(mechAll.get(fr), r);
+                if (ms.isEmpty()) {
+                    continue;
+                }
+                System.out.println(row(frames[fr] + ", as the plans computed it", n,
+                        checkD2(readAllD2(csvs, frames[fr]), r)));
+                System.out.println(row(frames[fr] + ", Σ_m alone", n, check(ms, 0, 0)));
+                System.out.println(row(String.format(Locale.ROOT, "%s, ML fit: Σ_m + %.3f² I", frames[fr], sMech[fr]), n,
+                        check(ms, sMech[fr], 0)));
+                if (plannerFrameSd[fr] != null) {
+                    System.out.println(row(String.format(Locale.ROOT, "%s, planner default: Σ_m + %s² I", frames[fr],
+                            plannerFrameSd[fr]), n, check(ms, plannerFrameSd[fr], 0)));
+                }
             }
             List<Case> withMarking = new ArrayList<>();
             for (Case c : csM) {

@@ -176,7 +176,7 @@ class BenchCalibrationFitTest {
         b.append("6,L1,mechanics-only (supine frame),1,2,3,10,20,30,1,2,3,\n");
         Path csv = dir.resolve("m.csv");
         Files.writeString(csv, b);
-        List<BenchCalibrationFit.Case> cases = BenchCalibrationFit.readMechanics(csv);
+        List<BenchCalibrationFit.Case> cases = BenchCalibrationFit.readMechanics(csv, BenchCalibration.MECHANICS_SUPINE);
         assertEquals(2, cases.size(), "the hybrid row is not a mechanics case");
         double[] m = cases.get(0).markingMm2();
         // 2 mm recorded: 2² = 4 mm² off the diagonal entries only
@@ -190,6 +190,26 @@ class BenchCalibrationFitTest {
         // no recorded term (an older CSV row): the covariance as written
         assertEquals(10, cases.get(1).markingMm2()[0]);
         assertEquals(6, cases.get(1).seed());
+    }
+
+    /** The prone-frame rows are read on their own, less the term in the newer column mech_model_sd_mm. */
+    @Test
+    void readsTheProneFrameRowsWithTheNewerColumn(@TempDir Path dir) throws Exception {
+        StringBuilder b = new StringBuilder("# caution\nseed,lesion,method,error_x_mm,error_y_mm,error_z_mm");
+        for (String n : BenchCalibration.SYMMETRIC_NAMES) {
+            b.append(",cov_").append(n).append("_mm2");
+        }
+        b.append(",mech_model_sd_mm\n");
+        b.append("5,L1,mechanics-only (supine frame),1,2,3,10,20,30,1,2,3,2\n");
+        b.append("5,L1,mechanics-only (prone frame),4,5,6,10,20,30,1,2,3,1\n");
+        Path csv = dir.resolve("p.csv");
+        Files.writeString(csv, b);
+        List<BenchCalibrationFit.Case> prone = BenchCalibrationFit.readMechanics(csv, BenchCalibration.MECHANICS_PRONE);
+        assertEquals(1, prone.size());
+        assertEquals(4, prone.get(0).errorMm()[0]);
+        assertEquals(9, prone.get(0).markingMm2()[0], "1 mm recorded: 1 mm² off the diagonal");
+        List<BenchCalibrationFit.Case> supine = BenchCalibrationFit.readMechanics(csv, BenchCalibration.MECHANICS_SUPINE);
+        assertEquals(6, supine.get(0).markingMm2()[0], "2 mm recorded: 4 mm² off the diagonal");
     }
 
     /** A random rotation (QR-free: Gram–Schmidt of three Gaussian vectors), row-major. */

@@ -123,12 +123,17 @@ class CaseFileReaderTest {
                 "}], \"model\": {\"element_size_mm\": 0}}")).key());
         assertEquals("priors.mechanics_supine_sd_mm", fails(MINIMAL.replace("}]}",
                 "}], \"priors\": {\"mechanics_supine_sd_mm\": -0.5}}")).key());
+        assertEquals("priors.mechanics_prone_sd_mm", fails(MINIMAL.replace("}]}",
+                "}], \"priors\": {\"mechanics_prone_sd_mm\": 51}}")).key());
     }
 
     @Test
     void givenMechanicsSupineSdIsUsed() throws IOException {
         CaseFile c = read(MINIMAL.replace("}]}", "}], \"priors\": {\"mechanics_supine_sd_mm\": 2.5}}"));
         assertEquals(2.5, c.priors().mechanicsSupineSdMm());
+        assertEquals(CaseFileReader.DEFAULT_MECHANICS_PRONE_SD_MM, c.priors().mechanicsProneSdMm());
+        c = read(MINIMAL.replace("}]}", "}], \"priors\": {\"mechanics_prone_sd_mm\": 3.5}}"));
+        assertEquals(3.5, c.priors().mechanicsProneSdMm());
     }
 
     @Test

@@ -58,14 +58,17 @@ class HybridEndToEndTest {
     }
 
     @Test
-    void mechanicsOnlyCovarianceGainsTheAlignmentTermInTheSupineFrameOnly() {
+    void mechanicsOnlyCovarianceGainsItsOwnModelTermInEachFrame() {
         double sm = c.priors().mechanicsSupineSdMm();
+        double sp = c.priors().mechanicsProneSdMm();
         assertEquals(1.12, sm, 0.0, "the default of docs/case-format.md");
+        assertEquals(CaseFileReader.DEFAULT_MECHANICS_PRONE_SD_MM, sp, 0.0);
         double[] prone = eigen(find(r, PlanResult.MECHANICS, PlanResult.FRAME_PRONE).covarianceMm2());
         double[] supine = eigen(find(r, PlanResult.MECHANICS, PlanResult.FRAME_SUPINE).covarianceMm2());
-        // Σ_supine = R Σ_prone Rᵀ + s_m² I: same eigenvectors up to R, every eigenvalue raised by s_m²
+        // Σ_prone = Σ_m + s_p² I and Σ_supine = R Σ_m Rᵀ + s_m² I: same eigenvectors up to R, every
+        // eigenvalue shifted by s_m² − s_p²
         for (int i = 0; i < 3; i++) {
-            assertEquals(prone[i] + sm * sm, supine[i], EIGEN_REL_TOL * supine[i], "eigenvalue " + i);
+            assertEquals(prone[i] - sp * sp + sm * sm, supine[i], EIGEN_REL_TOL * supine[i], "eigenvalue " + i);
         }
     }
 
