@@ -61,7 +61,8 @@ class HybridEndToEndTest {
     void mechanicsOnlyCovarianceGainsItsOwnModelTermInEachFrame() {
         double sm = c.priors().mechanicsSupineSdMm();
         double sp = c.priors().mechanicsProneSdMm();
-        assertEquals(1.12, sm, 0.0, "the default of docs/case-format.md");
+        assertEquals(CaseFileReader.DEFAULT_MECHANICS_SUPINE_SD_MM, sm, 0.0, "the default of docs/case-format.md");
+        assertTrue(sp > 0, "the prone frame has its own fitted term");
         assertEquals(CaseFileReader.DEFAULT_MECHANICS_PRONE_SD_MM, sp, 0.0);
         double[] prone = eigen(find(r, PlanResult.MECHANICS, PlanResult.FRAME_PRONE).covarianceMm2());
         double[] supine = eigen(find(r, PlanResult.MECHANICS, PlanResult.FRAME_SUPINE).covarianceMm2());
