@@ -270,7 +270,7 @@ public final class MechanicsModel {
             rs = ReferenceStateSolver.solve(proneMesh, mats, bc, gProne, cfg,
                     new ReferenceStateConfig(tol, sample ? MAX_WARM_REFERENCE_ITERATIONS : MAX_REFERENCE_ITERATIONS,
                             ANDERSON_DEPTH, sample ? SAMPLE_MAX_MISMATCH_MM : REFERENCE_MAX_MISMATCH_MM,
-                            sample ? SAMPLE_STALL_WINDOW : 0), progress, startX, startU);
+                            sample ? SAMPLE_STALL_WINDOW : 0, !sample), progress, startX, startU);
         } catch (SolverDivergedException e) {
             throw new ReferenceNotConvergedException("reference state: " + e.getMessage());
         }

@@ -18,9 +18,11 @@ package org.turnmark.mechanics.solve;
  * @param maxIterations  fixed-point iterations (forward solves) before giving up, ≥ 1 (default 40)
  * @param andersonDepth  number of previous iterates mixed by Anderson acceleration, ≥ 0; 0 gives
  *                       the plain fixed-point iteration (default 5)
+ * @param holdBack       apply the local safeguard ({@link ReferenceStateSolver}: hold back the nodes of
+ *                       elements a step would collapse) instead of failing on such a step (default true)
  */
 public record ReferenceStateConfig(double toleranceMm, int maxIterations, int andersonDepth, double maxMismatchMm,
-                                   int stallWindow) {
+                                   int stallWindow, boolean holdBack) {
 
     /** Share of nodes (percent) that must meet the tolerance when {@code maxMismatchMm} is larger. */
     public static final double PERCENTILE = 99;
@@ -30,6 +32,12 @@ public record ReferenceStateConfig(double toleranceMm, int maxIterations, int an
     /** The strict rule: every node within {@code toleranceMm}; no stall test. */
     public ReferenceStateConfig(double toleranceMm, int maxIterations, int andersonDepth) {
         this(toleranceMm, maxIterations, andersonDepth, toleranceMm, 0);
+    }
+
+    /** With the local safeguard. */
+    public ReferenceStateConfig(double toleranceMm, int maxIterations, int andersonDepth, double maxMismatchMm,
+                                int stallWindow) {
+        this(toleranceMm, maxIterations, andersonDepth, maxMismatchMm, stallWindow, true);
     }
 
     /** No stall test. */

@@ -180,7 +180,9 @@ public final class ReferenceStateSolver {
                 for (int i = 0; i < n; i++) {
                     x[i] = xPrev[i] + relax * fPrev[i];
                 }
-                heldBack += holdBack(x, xPrev, hex, detLoaded, detPrev, detWork, held);
+                if (rcfg.holdBack()) {
+                    heldBack += holdBack(x, xPrev, hex, detLoaded, detPrev, detWork, held);
+                }
                 hist = 0;
                 k--;
                 continue;
@@ -278,7 +280,9 @@ public final class ReferenceStateSolver {
                 }
                 x[i] = s;
             }
-            heldBack += holdBack(x, xPrev, hex, detLoaded, detPrev, detWork, held);
+            if (rcfg.holdBack()) {
+                heldBack += holdBack(x, xPrev, hex, detLoaded, detPrev, detWork, held);
+            }
         }
         throw new SolverDivergedException(String.format("reference-state iteration did not reach %.3g mm in %d"
                 + " forward solves (last max nodal mismatch %.4g mm)", rcfg.toleranceMm(), rcfg.maxIterations(),
