@@ -75,8 +75,8 @@ public final class CaseFileReader {
      * in place): the model error the sampled priors do not span. Fitted by maximum likelihood on the
      * prone-frame mechanics-only rows of the calibration run at the planner's default 6 mm elements,
      * seeds 131–152 (20 lesions; ML 1.522 mm, SE 0.409 mm), where Σ_m alone held the truth in only 16 of 20
-     * 95 % ellipsoids (mean d² 5.29); checked on seeds 153–172, which the fit did not see
-     * (docs/benchmarks.md, "Default element size").
+     * 95 % ellipsoids (mean d² 5.29); checked on seeds 153–170, which the fit did not see: 16 of 16
+     * (mean d² 2.76; docs/benchmarks.md, "Default element size after the reference-state safeguard").
      */
     static final double DEFAULT_MECHANICS_PRONE_SD_MM = 1.52;
 
