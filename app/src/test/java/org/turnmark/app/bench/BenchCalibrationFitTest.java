@@ -166,16 +166,10 @@ class BenchCalibrationFitTest {
 
     @Test
     void readsTheMechanicsRowsLessTheIsotropicTermThePlanAdded(@TempDir Path dir) throws Exception {
-        StringBuilder b = new StringBuilder("# caution\nseed,lesion,method,error_x_mm,error_y_mm,error_z_mm");
-        for (String n : BenchCalibration.SYMMETRIC_NAMES) {
-            b.append(",cov_").append(n).append("_mm2");
-        }
-        b.append(",mech_supine_sd_mm\n");
-        b.append("5,L1,mechanics-only (supine frame),1,2,3,10,20,30,1,2,3,2\n");
-        b.append("5,L1,hybrid,1,2,3,1,1,1,0,0,0,\n");
-        b.append("6,L1,mechanics-only (supine frame),1,2,3,10,20,30,1,2,3,\n");
-        Path csv = dir.resolve("m.csv");
-        Files.writeString(csv, b);
+        Path csv = mechanicsCsv(dir.resolve("m.csv"), "mech_supine_sd_mm",
+                "5,L1,mechanics-only (supine frame),1,2,3,10,20,30,1,2,3,2",
+                "5,L1,hybrid,1,2,3,1,1,1,0,0,0,",
+                "6,L1,mechanics-only (supine frame),1,2,3,10,20,30,1,2,3,");
         List<BenchCalibrationFit.Case> cases = BenchCalibrationFit.readMechanics(csv, BenchCalibration.MECHANICS_SUPINE);
         assertEquals(2, cases.size(), "the hybrid row is not a mechanics case");
         double[] m = cases.get(0).markingMm2();
@@ -195,21 +189,29 @@ class BenchCalibrationFitTest {
     /** The prone-frame rows are read on their own, less the term in the newer column mech_model_sd_mm. */
     @Test
     void readsTheProneFrameRowsWithTheNewerColumn(@TempDir Path dir) throws Exception {
-        StringBuilder b = new StringBuilder("# caution\nseed,lesion,method,error_x_mm,error_y_mm,error_z_mm");
-        for (String n : BenchCalibration.SYMMETRIC_NAMES) {
-            b.append(",cov_").append(n).append("_mm2");
-        }
-        b.append(",mech_model_sd_mm\n");
-        b.append("5,L1,mechanics-only (supine frame),1,2,3,10,20,30,1,2,3,2\n");
-        b.append("5,L1,mechanics-only (prone frame),4,5,6,10,20,30,1,2,3,1\n");
-        Path csv = dir.resolve("p.csv");
-        Files.writeString(csv, b);
+        Path csv = mechanicsCsv(dir.resolve("p.csv"), "mech_model_sd_mm",
+                "5,L1,mechanics-only (supine frame),1,2,3,10,20,30,1,2,3,2",
+                "5,L1,mechanics-only (prone frame),4,5,6,10,20,30,1,2,3,1");
         List<BenchCalibrationFit.Case> prone = BenchCalibrationFit.readMechanics(csv, BenchCalibration.MECHANICS_PRONE);
         assertEquals(1, prone.size());
         assertEquals(4, prone.get(0).errorMm()[0]);
         assertEquals(9, prone.get(0).markingMm2()[0], "1 mm recorded: 1 mm² off the diagonal");
         List<BenchCalibrationFit.Case> supine = BenchCalibrationFit.readMechanics(csv, BenchCalibration.MECHANICS_SUPINE);
         assertEquals(6, supine.get(0).markingMm2()[0], "2 mm recorded: 4 mm² off the diagonal");
+    }
+
+    /** A minimal calibration CSV: errors, the six covariance entries and the given isotropic-term column. */
+    private static Path mechanicsCsv(Path csv, String sdColumn, String... rows) throws java.io.IOException {
+        StringBuilder b = new StringBuilder("# caution\nseed,lesion,method,error_x_mm,error_y_mm,error_z_mm");
+        for (String n : BenchCalibration.SYMMETRIC_NAMES) {
+            b.append(",cov_").append(n).append("_mm2");
+        }
+        b.append(',').append(sdColumn).append('\n');
+        for (String r : rows) {
+            b.append(r).append('\n');
+        }
+        Files.writeString(csv, b);
+        return csv;
     }
 
     /** A random rotation (QR-free: Gram–Schmidt of three Gaussian vectors), row-major. */

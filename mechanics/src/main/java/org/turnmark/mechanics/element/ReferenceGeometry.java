@@ -2,6 +2,7 @@ package org.turnmark.mechanics.element;
 
 import org.turnmark.geom.Parallel;
 import org.turnmark.mechanics.mesh.HexMesh;
+import org.turnmark.mechanics.mesh.TrilinearHex;
 
 /**
  * Per-element data of the reference (undeformed) configuration of a hexahedral mesh for 2×2×2
@@ -68,14 +69,37 @@ public final class ReferenceGeometry {
             int from = blk * BLOCK;
             int to = Math.min(ne, from + BLOCK);
             double[] dxi = new double[24];
-            double[] j = new double[9];
             for (int g = 0; g < 8; g++) {
-                naturalGradients(g, dxi);
+                // shape-function derivatives in natural coordinates at Gauss point g
+                for (int a = 0; a < 8; a++) {
+                    double xa = NODE_XI[a];
+                    double ya = NODE_ETA[a];
+                    double za = NODE_ZETA[a];
+                    dxi[3 * a] = 0.125 * xa * (1 + ya * ETA[g]) * (1 + za * ZETA[g]);
+                    dxi[3 * a + 1] = 0.125 * ya * (1 + xa * XI[g]) * (1 + za * ZETA[g]);
+                    dxi[3 * a + 2] = 0.125 * za * (1 + xa * XI[g]) * (1 + ya * ETA[g]);
+                }
                 for (int e = from; e < to; e++) {
-                    jacobian(xyzMm, hex, e, dxi, j);
-                    double j00 = j[0], j01 = j[1], j02 = j[2];
-                    double j10 = j[3], j11 = j[4], j12 = j[5];
-                    double j20 = j[6], j21 = j[7], j22 = j[8];
+                    // J0[i][α] = Σ_a X_a,i ∂N_a/∂ξ_α
+                    double j00 = 0, j01 = 0, j02 = 0, j10 = 0, j11 = 0, j12 = 0, j20 = 0, j21 = 0, j22 = 0;
+                    for (int a = 0; a < 8; a++) {
+                        int n = 3 * hex[8 * e + a];
+                        double x = xyzMm[n];
+                        double y = xyzMm[n + 1];
+                        double z = xyzMm[n + 2];
+                        double d0 = dxi[3 * a];
+                        double d1 = dxi[3 * a + 1];
+                        double d2 = dxi[3 * a + 2];
+                        j00 += x * d0;
+                        j01 += x * d1;
+                        j02 += x * d2;
+                        j10 += y * d0;
+                        j11 += y * d1;
+                        j12 += y * d2;
+                        j20 += z * d0;
+                        j21 += z * d1;
+                        j22 += z * d2;
+                    }
                     double c00 = j11 * j22 - j12 * j21;
                     double c01 = j12 * j20 - j10 * j22;
                     double c02 = j10 * j21 - j11 * j20;
@@ -128,9 +152,10 @@ public final class ReferenceGeometry {
     }
 
     /**
-     * Smallest det(∂X/∂ξ) over the 8 Gauss points of every element (mm³ per unit natural volume; one
-     * eighth of the element volume for an affine element). Negative or zero for a degenerate or
-     * inverted element; unlike {@link #of(double[], int[])} this never throws.
+     * Smallest det(∂X/∂ξ) over the 8 Gauss points of every element (mm³ per unit natural volume, ξ in
+     * [−1, 1]³: one eighth of the element volume for an affine element; the same quantity as
+     * {@link #weight()}), from {@link TrilinearHex#jacobian} on [0, 1]³ divided by 8. Negative or zero for a
+     * degenerate or inverted element; unlike {@link #of(double[], int[])} this never throws.
      *
      * @param xyzMm node coordinates, 3 per node
      * @param hex   connectivity, 8 per element (VTK order)
@@ -142,65 +167,17 @@ public final class ReferenceGeometry {
             throw new IllegalArgumentException("need " + ne + " output values, got " + out.length);
         }
         Parallel.forEachBlock(Parallel.blockCount(ne, BLOCK), 16L * ne, blk -> {
-            int from = blk * BLOCK;
-            int to = Math.min(ne, from + BLOCK);
-            double[] dxi = new double[24];
-            double[] j = new double[9];
-            java.util.Arrays.fill(out, from, to, Double.POSITIVE_INFINITY);
-            for (int g = 0; g < 8; g++) {
-                naturalGradients(g, dxi);
-                for (int e = from; e < to; e++) {
-                    jacobian(xyzMm, hex, e, dxi, j);
-                    double det = j[0] * (j[4] * j[8] - j[5] * j[7]) + j[1] * (j[5] * j[6] - j[3] * j[8])
-                            + j[2] * (j[3] * j[7] - j[4] * j[6]);
-                    out[e] = Math.min(out[e], det);
+            double[] jac = new double[9];
+            for (int e = blk * BLOCK, to = Math.min(ne, e + BLOCK); e < to; e++) {
+                double min = Double.POSITIVE_INFINITY;
+                for (int g = 0; g < 8; g++) {
+                    // Gauss point ξ ∈ [−1, 1] → r = (1 + ξ) / 2; dr/dξ = 1/2 per axis, so det scales by 1/8
+                    min = Math.min(min, TrilinearHex.jacobian(hex, e, xyzMm, 0.5 * (1 + XI[g]), 0.5 * (1 + ETA[g]),
+                            0.5 * (1 + ZETA[g]), jac) / 8);
                 }
+                out[e] = min;
             }
         });
-    }
-
-    /** ∂N_a/∂ξ_α at Gauss point g, {@code dxi[3a + α]}. */
-    private static void naturalGradients(int g, double[] dxi) {
-        for (int a = 0; a < 8; a++) {
-            double xa = NODE_XI[a];
-            double ya = NODE_ETA[a];
-            double za = NODE_ZETA[a];
-            dxi[3 * a] = 0.125 * xa * (1 + ya * ETA[g]) * (1 + za * ZETA[g]);
-            dxi[3 * a + 1] = 0.125 * ya * (1 + xa * XI[g]) * (1 + za * ZETA[g]);
-            dxi[3 * a + 2] = 0.125 * za * (1 + xa * XI[g]) * (1 + ya * ETA[g]);
-        }
-    }
-
-    /** J0[i][α] = Σ_a X_a,i ∂N_a/∂ξ_α of element e, row-major into {@code j}. */
-    private static void jacobian(double[] xyzMm, int[] hex, int e, double[] dxi, double[] j) {
-        double j00 = 0, j01 = 0, j02 = 0, j10 = 0, j11 = 0, j12 = 0, j20 = 0, j21 = 0, j22 = 0;
-        for (int a = 0; a < 8; a++) {
-            int n = 3 * hex[8 * e + a];
-            double x = xyzMm[n];
-            double y = xyzMm[n + 1];
-            double z = xyzMm[n + 2];
-            double d0 = dxi[3 * a];
-            double d1 = dxi[3 * a + 1];
-            double d2 = dxi[3 * a + 2];
-            j00 += x * d0;
-            j01 += x * d1;
-            j02 += x * d2;
-            j10 += y * d0;
-            j11 += y * d1;
-            j12 += y * d2;
-            j20 += z * d0;
-            j21 += z * d1;
-            j22 += z * d2;
-        }
-        j[0] = j00;
-        j[1] = j01;
-        j[2] = j02;
-        j[3] = j10;
-        j[4] = j11;
-        j[5] = j12;
-        j[6] = j20;
-        j[7] = j21;
-        j[8] = j22;
     }
 
     /** Number of elements. */

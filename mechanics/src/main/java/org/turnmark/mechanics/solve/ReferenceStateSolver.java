@@ -152,10 +152,14 @@ public final class ReferenceStateSolver {
         final double[] uBest = new double[n];
         double relax = 1;
         final int[] hex = loaded.hex();
-        final double[] detLoaded = new double[hex.length / 8];
-        ReferenceGeometry.minGaussDet(xObs, hex, detLoaded);
-        final double[] detPrev = new double[detLoaded.length];
-        final double[] detWork = new double[detLoaded.length];
+        // element determinants for the local safeguard; not computed when it is off
+        final int ne = rcfg.holdBack() ? hex.length / 8 : 0;
+        final double[] detLoaded = new double[ne];
+        final double[] detPrev = new double[ne];
+        final double[] detWork = new double[ne];
+        if (rcfg.holdBack()) {
+            ReferenceGeometry.minGaussDet(xObs, hex, detLoaded);
+        }
         int heldBack = 0;
         final boolean[] held = new boolean[n / 3];   // nodes held back in the current iterate
         for (int k = 0; k < rcfg.maxIterations(); k++) {
@@ -270,7 +274,9 @@ public final class ReferenceStateSolver {
             }
             System.arraycopy(x, 0, xPrev, 0, n);
             System.arraycopy(f, 0, fPrev, 0, n);
-            ReferenceGeometry.minGaussDet(xPrev, hex, detPrev);
+            if (rcfg.holdBack()) {
+                ReferenceGeometry.minGaussDet(xPrev, hex, detPrev);
+            }
             // damped Anderson: X_{k+1} = X_k + β f_k − (ΔX + β ΔF) γ
             double[] gamma = hist > 0 ? leastSquares(dF, hist, f) : new double[0];
             for (int i = 0; i < n; i++) {
