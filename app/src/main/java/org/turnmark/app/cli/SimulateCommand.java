@@ -21,6 +21,7 @@ import org.turnmark.mechanics.element.HexKernel;
 import org.turnmark.mechanics.material.MaterialTable;
 import org.turnmark.mechanics.material.NeoHookeanMaterial;
 import org.turnmark.mechanics.mesh.ChestWallBoundary;
+import org.turnmark.mechanics.mesh.FieldOfViewEdge;
 import org.turnmark.mechanics.mesh.ConfigurationMap;
 import org.turnmark.mechanics.mesh.DenseDisplacement;
 import org.turnmark.mechanics.mesh.DisplacementFieldSampler;
@@ -151,9 +152,11 @@ final class SimulateCommand implements Callable<Integer> {
         MeshSurface surface = MeshSurface.of(mesh);
         ChestWallBoundary.ChestWall wall = ChestWallBoundary.find(mesh, surface, labels.grid(), labels.labels(),
                 elementMm);
+        // tissue cut by the image's field of view is held as the body beyond it would hold it
+        boolean[] cut = FieldOfViewEdge.cutNodes(mesh, labels.grid());
         SkinSmoother.Result smoothing = null;
         if (smoothSkin > 0) {
-            boolean[] pinned = new boolean[mesh.nodeCount()];
+            boolean[] pinned = cut.clone();
             for (int n : wall.nodes()) {
                 pinned[n] = true;
             }
@@ -161,6 +164,16 @@ final class SimulateCommand implements Callable<Integer> {
             mesh = smoothing.mesh();
         }
         NodeConstraints bc = ChestWallConstraints.of(mesh, surface, wall, sliding);
+        int nCut = FieldOfViewEdge.count(cut);
+        for (int n = 0; n < cut.length; n++) {
+            if (cut[n]) {
+                bc.fix(n);
+            }
+        }
+        if (nCut > 0) {
+            warnings.add(nCut + " nodes where the image's field of view cuts the tissue are held in place "
+                    + "(the body goes on beyond the image)");
+        }
         progress.update("meshing", 1);
 
         SolverConfig cfg = SolverConfig.defaults();

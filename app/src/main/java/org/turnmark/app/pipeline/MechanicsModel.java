@@ -10,6 +10,7 @@ import org.turnmark.mechanics.material.MaterialTable;
 import org.turnmark.mechanics.material.NeoHookeanMaterial;
 import org.turnmark.mechanics.mesh.ChestWallBoundary;
 import org.turnmark.mechanics.mesh.ConfigurationMap;
+import org.turnmark.mechanics.mesh.FieldOfViewEdge;
 import org.turnmark.mechanics.mesh.HexMesh;
 import org.turnmark.mechanics.mesh.LabelMesh;
 import org.turnmark.mechanics.mesh.LabelMesher;
@@ -112,9 +113,13 @@ public final class MechanicsModel {
     }
 
     private final boolean[] rim;
+    /** Nodes where the image's field of view cuts the tissue: held in place ({@link FieldOfViewEdge}). */
+    private final boolean[] cut;
 
-    private MechanicsModel(LabelMesh labelMesh, ChestWallBoundary.ChestWall wall, double elementMm, boolean[] rim) {
+    private MechanicsModel(LabelMesh labelMesh, ChestWallBoundary.ChestWall wall, double elementMm, boolean[] rim,
+                           boolean[] cut) {
         this.rim = rim;
+        this.cut = cut;
         this.labelMesh = labelMesh;
         this.proneMesh = labelMesh.mesh();
         this.wall = wall;
@@ -186,7 +191,7 @@ public final class MechanicsModel {
         ChestWallBoundary.ChestWall wall = ChestWallBoundary.find(lm.mesh(), surface, grid, labels, elementMm);
         // Rim: chest-wall nodes that also lie on a skin face (the edge of the breast base).
         boolean[] rim = wall.rim(surface, lm.mesh().nodeCount());
-        return new MechanicsModel(lm, wall, elementMm, rim);
+        return new MechanicsModel(lm, wall, elementMm, rim, FieldOfViewEdge.cutNodes(lm.mesh(), grid));
     }
 
     public LabelMesh labelMesh() {
@@ -196,6 +201,11 @@ public final class MechanicsModel {
     /** The mesh in the prone (imaged) configuration. */
     public HexMesh proneMesh() {
         return proneMesh;
+    }
+
+    /** Number of nodes held in place where the image's field of view cuts the tissue. */
+    public int fieldOfViewNodes() {
+        return FieldOfViewEdge.count(cut);
     }
 
     public ChestWallBoundary.ChestWall chestWall() {
@@ -210,10 +220,17 @@ public final class MechanicsModel {
      * Chest-wall nodes fixed, or sliding on their normals. When sliding, the rim of the contact (chest-wall
      * nodes that also lie on the skin, where the breast base meets the torso skin) and nodes without a
      * normal stay fixed: this anchors the base as the surrounding skin does and removes the rigid slide
-     * and spin a flat or rotationally symmetric chest wall would otherwise leave free.
+     * and spin a flat or rotationally symmetric chest wall would otherwise leave free. Nodes where the
+     * image's field of view cuts the tissue are fixed too ({@link FieldOfViewEdge}).
      */
     public NodeConstraints constraints(boolean sliding) {
-        return ChestWallConstraints.of(proneMesh.nodeCount(), wall, rim, sliding);
+        NodeConstraints bc = ChestWallConstraints.of(proneMesh.nodeCount(), wall, rim, sliding);
+        for (int n = 0; n < cut.length; n++) {
+            if (cut[n]) {
+                bc.fix(n);
+            }
+        }
+        return bc;
     }
 
     /** The material table of a prior sample, with the densities of the case. */

@@ -68,11 +68,13 @@ public record PlanResult(String caution, Map<String, String> software, String cr
      * @param elements       hexahedra
      * @param nodes          nodes
      * @param chestWallNodes nodes on the chest-wall boundary
+     * @param fieldOfViewNodes nodes held in place where the image's field of view cuts the tissue
      * @param chestWall      "sliding" or "fixed" (nominal)
      * @param materials      nominal material per tissue: μ (kPa), ν, density (kg/m³)
      * @param solves         diagnostics of the nominal solves, by name
      */
-    public record ModelSummary(double elementSizeMm, int elements, int nodes, int chestWallNodes, String chestWall,
+    public record ModelSummary(double elementSizeMm, int elements, int nodes, int chestWallNodes, int fieldOfViewNodes,
+                               String chestWall,
                                Map<String, Map<String, Double>> materials, Map<String, SolveSummary> solves) {
     }
 
@@ -153,19 +155,19 @@ public record PlanResult(String caution, Map<String, String> software, String cr
 
     /**
      * The terms of the hybrid covariance, all in the supine image frame (mm²):
-     * Σ = markingWeight · marking + (registrationSdMm² + correctionWeight · |correction|² / 3) I.
+     * Σ = markingWeight · marking + (registrationSdMm² + spreadWeight · |spread|² / 3) I.
      *
      * @param markingMm2        lesion-marking error propagated through the mechanics map (J Σ Jᵀ), rotated
      *                          into the supine frame, 3×3 row-major (mm²)
      * @param markingWeight     1 when the centroid is the mark or its intensity-weighted refinement, 0 when
      *                          it was refined on a lesion label
      * @param registrationSdMm  isotropic SD of the registration's own error (mm)
-     * @param correctionMm      the registration's correction at the lesion: hybrid minus mechanics-only
-     *                          prediction, supine frame (mm)
-     * @param correctionWeight  expected squared residual error per squared correction (dimensionless)
+     * @param spreadMm          hybrid minus registration-only prediction, supine frame (mm): where the same
+     *                          registration started from the mechanics and from a rigid start disagree
+     * @param spreadWeight      expected squared hybrid error per squared spread (dimensionless)
      */
     public record CovarianceTerms(double[] markingMm2, double markingWeight, double registrationSdMm,
-                                  double[] correctionMm, double correctionWeight) {
+                                  double[] spreadMm, double spreadWeight) {
     }
 
     /**

@@ -295,16 +295,16 @@ public final class Planner {
                         describe(li.side, xms, reg.proneFrameToSupine(nipSup), surfaces, supNodesS), rank, err(truthS, xms),
                         ellSupine));
                 double[] xh = reg.hybridPoint(x0);
+                double[] xr = reg.registrationOnlyPoint(x0);
                 // Hybrid covariance (docs/planner.md, Uncertainty): the marking term only when the centroid was
                 // not refined on a lesion label (a label centroid carries no hand-marking error), the
-                // registration's own error, and an isotropic error growing with the correction the registration
-                // made to its mechanical start at the lesion.
+                // registration's own error, and an isotropic error growing with the spread between the hybrid and
+                // the registration-only prediction (the same registration from two starts) at the lesion.
                 PlanResult.CovarianceTerms terms = covMs == null ? null : new PlanResult.CovarianceTerms(
                         reg.rotateCovariance(markCov), li.centroid.onLabel() ? 0 : 1, c.priors().registrationSdMm(),
-                        diff(xh, xms), SupineStage.HYBRID_CORRECTION_WEIGHT);
+                        diff(xh, xr), SupineStage.HYBRID_SPREAD_WEIGHT);
                 preds.add(prediction(PlanResult.HYBRID, PlanResult.FRAME_SUPINE, x0, xh, terms,
                         describe(li.side, xh, reg.hybridPoint(nip), surfaces, supNodesS), err(truthS, xh), ellSupine));
-                double[] xr = reg.registrationOnlyPoint(x0);
                 preds.add(prediction(PlanResult.REGISTRATION, PlanResult.FRAME_SUPINE, x0, xr, null,
                         describe(li.side, xr, reg.registrationOnlyPoint(nip), surfaces, supNodesS), null, err(truthS, xr), null));
             }
@@ -356,7 +356,8 @@ public final class Planner {
             matSummary.put(tissue[t], m);
         }
         PlanResult.ModelSummary ms = new PlanResult.ModelSummary(h, model.proneMesh().elementCount(),
-                model.proneMesh().nodeCount(), model.chestWall().size(), sliding ? "sliding" : "fixed", matSummary, solves);
+                model.proneMesh().nodeCount(), model.chestWall().size(), model.fieldOfViewNodes(),
+                sliding ? "sliding" : "fixed", matSummary, solves);
         List<String> keys = new ArrayList<>(List.of(names));
         PlanResult.UncertaintySummary us = new PlanResult.UncertaintySummary(nSamples, samplePositions.size(),
                 c.uncertainty().design(), c.uncertainty().seed(), keys,
@@ -364,8 +365,8 @@ public final class Planner {
                                 + "deformation gradient; hybrid: only for centroids not refined on a lesion label)",
                                 c.priors().lesionMarkingSdMm()),
                         String.format(Locale.ROOT, "registration (hybrid only, isotropic: %.3g mm SD plus %.3g x the "
-                                + "squared correction at the lesion / 3)", c.priors().registrationSdMm(),
-                                SupineStage.HYBRID_CORRECTION_WEIGHT),
+                                + "squared distance between the hybrid and registration-only predictions / 3)",
+                                c.priors().registrationSdMm(), SupineStage.HYBRID_SPREAD_WEIGHT),
                         String.format(Locale.ROOT, "rigid alignment and model error (mechanics-only in the supine frame, "
                                 + "isotropic %.3g mm SD)", c.priors().mechanicsSupineSdMm()),
                         String.format(Locale.ROOT, "model error (mechanics-only in the prone frame, isotropic %.3g mm SD)",
@@ -413,11 +414,11 @@ public final class Planner {
                 p.covarianceMm2(), p.ellipsoid68(), p.ellipsoid95(), p.descriptors(), null, err, terms);
     }
 
-    /** Σ = markingWeight · marking + (registrationSdMm² + correctionWeight · |correction|² / 3) I (mm²). */
+    /** Σ = markingWeight · marking + (registrationSdMm² + spreadWeight · |spread|² / 3) I (mm²). */
     static double[] covariance(PlanResult.CovarianceTerms t) {
-        double[] d = t.correctionMm();
+        double[] d = t.spreadMm();
         double v = t.registrationSdMm() * t.registrationSdMm()
-                + t.correctionWeight() * (d[0] * d[0] + d[1] * d[1] + d[2] * d[2]) / 3;
+                + t.spreadWeight() * (d[0] * d[0] + d[1] * d[1] + d[2] * d[2]) / 3;
         double[] s = scale(t.markingMm2(), t.markingWeight());
         s[0] += v;
         s[4] += v;

@@ -112,12 +112,18 @@ final class QualityFlags {
         for (PlanResult.LesionResult l : lesions) {
             PlanResult.Prediction m = null;
             PlanResult.Prediction h = null;
+            PlanResult.Prediction r = null;
             for (PlanResult.Prediction p : l.predictions()) {
                 if (PlanResult.FRAME_SUPINE.equals(p.frame()) && PlanResult.MECHANICS.equals(p.method())) {
                     m = p;
                 } else if (PlanResult.HYBRID.equals(p.method())) {
                     h = p;
+                } else if (PlanResult.REGISTRATION.equals(p.method())) {
+                    r = p;
                 }
+            }
+            if (h != null && r != null) {
+                registrationSpread(flags, l.id(), h, r);
             }
             if (m == null || h == null) {
                 continue;
@@ -140,5 +146,27 @@ final class QualityFlags {
                                     + "stated uncertainty, review the images"
                                     : "within the 95 % ellipsoids")));
         }
+    }
+
+    /**
+     * Hybrid vs registration-only: the same registration from the mechanics start and from a rigid start.
+     * Where they end far apart, at least one settled on other tissue; the hybrid covariance already grows
+     * with that spread ({@link PlanResult.CovarianceTerms}), and the flag says so when the
+     * registration-only position lies outside the hybrid's 95 % ellipsoid.
+     */
+    static void registrationSpread(List<PlanResult.QualityFlag> flags, String lesionId, PlanResult.Prediction hybrid,
+                                   PlanResult.Prediction registrationOnly) {
+        double[] a = hybrid.positionRasMm();
+        double[] b = registrationOnly.positionRasMm();
+        double d = Math.sqrt((a[0] - b[0]) * (a[0] - b[0]) + (a[1] - b[1]) * (a[1] - b[1])
+                + (a[2] - b[2]) * (a[2] - b[2]));
+        boolean outside = hybrid.covarianceMm2() != null
+                && !org.turnmark.app.uncertainty.Ellipsoid.of(a, hybrid.covarianceMm2(), 0.95).contains(b);
+        flags.add(new PlanResult.QualityFlag(outside ? PlanResult.QualityFlag.WARNING : PlanResult.QualityFlag.OK,
+                "registration agreement", f("lesion %s: hybrid and registration-only differ by %.1f mm; %s", lesionId, d,
+                        hybrid.covarianceMm2() == null ? "(no hybrid ellipsoid to compare)"
+                                : outside ? "the registration-only position lies outside the hybrid 95 % ellipsoid: "
+                                + "the registration found different tissue from its two starts, review the images"
+                                : "within the hybrid 95 % ellipsoid, which grows with this distance")));
     }
 }

@@ -46,16 +46,15 @@ import org.turnmark.registration.volume.Volume;
 final class SupineStage {
 
     /**
-     * Hybrid covariance: expected squared residual error per squared correction, i.e. the isotropic
-     * variance c · |δ|² / 3 added for a registration that moved the lesion by δ from its mechanical start
-     * (docs/planner.md, Uncertainty). Fitted by maximum likelihood together with
-     * {@link CaseFileReader#DEFAULT_REGISTRATION_SD_MM} on the calibration runs of 2026-12-02
-     * (BenchCalibration, priors-drawn phantoms, 8 samples, 8 mm elements, code fa9c213). A fit on seeds
-     * 1–24 alone (0.32) held the truth in 20 of 22 95 % ellipsoids on seeds 25–48 but only 13 of 18 on
-     * 49–72; this value is the fit on seeds 1–72 pooled (59 lesions; ML 0.533, SE 0.128), checked on
-     * seeds 73–88 run afterwards; docs/benchmarks.md, "Calibration of the 95 % ellipsoid".
+     * Hybrid covariance: expected squared hybrid error per squared spread, i.e. the isotropic variance
+     * w · |ρ|² / 3 added when the hybrid and the registration-only prediction of a lesion lie ρ apart
+     * (docs/planner.md, Uncertainty): the same registration started from the mechanics and from a rigid
+     * start ending in different places says that at least one settled on other tissue. Fitted by maximum
+     * likelihood with {@link CaseFileReader#DEFAULT_REGISTRATION_SD_MM} on calibration seeds 131–170 at
+     * 6 mm elements (36 lesions; ML 0.373, SE 0.086; lowest AIC of the three forms tried; runs made before
+     * the field-of-view cut was held); docs/benchmarks.md.
      */
-    static final double HYBRID_CORRECTION_WEIGHT = 0.53;
+    static final double HYBRID_SPREAD_WEIGHT = 0.37;
     /** Fixed-point iterations and tolerance (mm) for inverting a displacement field at a point. */
     static final int INVERSE_ITERATIONS = 100;
     static final double INVERSE_TOLERANCE_MM = 0.01;

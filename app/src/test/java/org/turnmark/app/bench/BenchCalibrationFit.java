@@ -28,10 +28,13 @@ import org.turnmark.geom.ResearchUse;
  * <p>Model (docs/planner.md, Uncertainty): for lesion i the hybrid error e_i (truth − prediction, supine
  * frame, mm) is taken as Gaussian N(0, Σ_i) with Σ_i = a_i K_i + s² I + w G_i: K_i the lesion-marking term
  * and a_i its weight as the plan used it (0 for a centroid refined on a lesion label), s the registration
- * SD (mm) and G_i a per-lesion shape with weight w: {@link Shape#CORRECTION} (the planner's model) G_i =
- * |δ_i|²/3 I with δ_i the hybrid minus the mechanics-only prediction (the registration's correction at the
- * lesion; from the CSV, δ = e_mechanics − e_hybrid), or {@link Shape#MECHANICS} G_i = the mechanics-only
- * covariance (the first model tried). The fit maximises the Gaussian log-likelihood
+ * SD (mm) and G_i a per-lesion shape with weight w: {@link Shape#SPREAD} (the planner's model) G_i =
+ * |ρ_i|²/3 I with ρ_i the hybrid minus the registration-only prediction (from the CSV,
+ * ρ = e_registration − e_hybrid), {@link Shape#CORRECTION} G_i = |δ_i|²/3 I with δ_i the hybrid minus the
+ * mechanics-only prediction (the registration's correction at the lesion; δ = e_mechanics − e_hybrid; the
+ * planner's model before the spread), or {@link Shape#MECHANICS} G_i = the mechanics-only covariance (the
+ * first model tried). Every shape is fitted and printed with its AIC; {@code --shape} picks the one the
+ * planner-default rows use. The fit maximises the Gaussian log-likelihood
  * −½ Σ_i (log det Σ_i + e_iᵀ Σ_i⁻¹ e_i) over s &gt; 0 and w ≥ 0: for each w the profile over log s by Brent's
  * method, w on a grid and then by Brent's method around the best grid point. Standard errors from the
  * numerical Hessian of the negative log-likelihood (observed information) at the optimum.
@@ -45,7 +48,7 @@ import org.turnmark.geom.ResearchUse;
  *
  * <pre>
  * java -cp app/target/turnmark.jar:app/target/test-classes org.turnmark.app.bench.BenchCalibrationFit \
- *   --csv FILE.csv --fit 1-24 --check 25-48 [--shape correction|mechanics] [--planner-sd-mm S --planner-weight W]
+ *   --csv FILE.csv --fit 1-24 --check 25-48 [--shape correction|mechanics|spread] [--planner-sd-mm S --planner-weight W]
  * </pre>
  */
 public final class BenchCalibrationFit {
@@ -78,10 +81,24 @@ public final class BenchCalibrationFit {
 
     /** The per-lesion shape G of the weighted term. */
     enum Shape {
-        /** ‖δ‖²/3 I, δ = hybrid − mechanics-only prediction (the planner's model). */
+        /** ‖δ‖²/3 I, δ = hybrid − mechanics-only prediction (the planner's model before {@link #SPREAD}). */
         CORRECTION,
         /** The mechanics-only covariance in the supine frame. */
-        MECHANICS
+        MECHANICS,
+        /**
+         * ‖ρ‖²/3 I, ρ = hybrid − registration-only prediction: the spread of the same registration
+         * started from the mechanics and from a rigid start (the planner's model).
+         */
+        SPREAD;
+
+        /** How the shape is written in the fit's table. */
+        String symbol() {
+            return switch (this) {
+                case CORRECTION -> "‖δ‖²/3 I";
+                case MECHANICS -> "Σ_m";
+                case SPREAD -> "‖ρ‖²/3 I";
+            };
+        }
     }
 
     /**
@@ -210,15 +227,23 @@ public final class BenchCalibrationFit {
                         + "with the hybrid covariance terms is expected)");
             }
         }
+        // errors of the other methods, by seed/lesion (the registration-only row follows the hybrid one)
         Map<String, double[]> mechanicsError = new HashMap<>();
+        Map<String, double[]> registrationError = new HashMap<>();
+        for (String[] f : t.rows()) {
+            String key = f[col.get("seed")] + "/" + f[col.get("lesion")];
+            String method = f[col.get("method")];
+            Map<String, double[]> to = BenchCalibration.MECHANICS_SUPINE.equals(method) ? mechanicsError
+                    : PlanResult.REGISTRATION.equals(method) ? registrationError : null;
+            if (to != null && !f[col.get("error_x_mm")].isEmpty()) {
+                to.put(key, new double[] {num(f, col, "error_x_mm"), num(f, col, "error_y_mm"),
+                        num(f, col, "error_z_mm")});
+            }
+        }
         List<Case> out = new ArrayList<>();
         for (int r = 0; r < t.rows().size(); r++) {
             String[] f = t.rows().get(r);
             String key = f[col.get("seed")] + "/" + f[col.get("lesion")];
-            if (BenchCalibration.MECHANICS_SUPINE.equals(f[col.get("method")])) {
-                mechanicsError.put(key, new double[] {num(f, col, "error_x_mm"), num(f, col, "error_y_mm"),
-                        num(f, col, "error_z_mm")});
-            }
             if (!PlanResult.HYBRID.equals(f[col.get("method")]) || f[col.get("hyb_marking_xx_mm2")].isEmpty()) {
                 continue;
             }
@@ -228,9 +253,11 @@ public final class BenchCalibrationFit {
                 if (shape == Shape.MECHANICS) {
                     g = symmetric(f, col, "hyb_mechanics_");
                 } else {
-                    double[] em = mechanicsError.get(key);
+                    // δ = e_other − e_hybrid (e = truth − prediction)
+                    double[] em = (shape == Shape.SPREAD ? registrationError : mechanicsError).get(key);
                     if (em == null) {
-                        throw new IllegalArgumentException("no mechanics-only row before the hybrid row of " + key);
+                        throw new IllegalArgumentException("no " + (shape == Shape.SPREAD ? "registration-only"
+                                : "mechanics-only") + " row with an error for the hybrid row of " + key);
                     }
                     double d2 = 0;
                     for (int a = 0; a < 3; a++) {
@@ -442,7 +469,7 @@ public final class BenchCalibrationFit {
         List<Path> csvs = new ArrayList<>();
         long[] fitRange = null;
         List<long[]> checkRanges = new ArrayList<>();
-        Shape shape = Shape.CORRECTION;
+        Shape shape = Shape.SPREAD;
         double oldSd = 1.5;
         double oldWeight = 0.25;
         Double plannerSd = null;
@@ -475,7 +502,7 @@ public final class BenchCalibrationFit {
         }
         if (csvs.isEmpty() || fitRange == null || checkRanges.isEmpty()) {
             System.err.println("usage: BenchCalibrationFit --csv FILE[,FILE...] --fit FROM-TO --check FROM-TO[,FROM-TO...] "
-                    + "[--shape correction|mechanics] [--compare-sd-mm 1.5 --compare-weight 0.25] "
+                    + "[--shape correction|mechanics|spread] [--compare-sd-mm 1.5 --compare-weight 0.25] "
                     + "[--planner-sd-mm S --planner-weight W] [--planner-mech-sd-mm S_M] [--planner-prone-sd-mm S_P]");
             System.exit(2);
             return;
@@ -493,13 +520,15 @@ public final class BenchCalibrationFit {
         String fitName = name(fitRange, "fit");
         System.out.println("# " + ResearchUse.SHORT);
         System.out.printf(Locale.ROOT, "%s: %d hybrid lesions from %s%n", fitName, fitSet.size(), csvs);
-        for (Object[] m : new Object[][] {{Shape.CORRECTION, shape == Shape.CORRECTION ? f : fit(select(
-                readAll(csvs, Shape.CORRECTION), fitRange))}, {Shape.MECHANICS, fm}}) {
-            Fit x = (Fit) m[1];
+        Map<Shape, List<Case>> byShape = new java.util.EnumMap<>(Shape.class);
+        Map<Shape, Fit> fits = new java.util.EnumMap<>(Shape.class);
+        for (Shape sh : Shape.values()) {
+            byShape.put(sh, sh == shape ? all : sh == Shape.MECHANICS ? allM : readAll(csvs, sh));
+            fits.put(sh, sh == shape ? f : sh == Shape.MECHANICS ? fm : fit(select(byShape.get(sh), fitRange)));
+            Fit x = fits.get(sh);
             System.out.printf(Locale.ROOT, "ML fit, G = %s: s = %.3f mm (SE %.3f mm), w = %.4f (SE %.4f); −log L = %.3f "
-                            + "(+ 3/2 log 2π per lesion), AIC = %.2f%n", m[0] == Shape.CORRECTION ? "‖δ‖²/3 I"
-                            : "mechanics-only covariance", x.registrationSdMm(), x.sdSeMm(), x.weight(), x.weightSe(),
-                    x.negLogLik(), 2 * x.negLogLik() + 4);
+                            + "(+ 3/2 log 2π per lesion), AIC = %.2f%n", sh.symbol(), x.registrationSdMm(), x.sdSeMm(),
+                    x.weight(), x.weightSe(), x.negLogLik(), 2 * x.negLogLik() + 4);
         }
         String[] frames = {BenchCalibration.MECHANICS_SUPINE, BenchCalibration.MECHANICS_PRONE};
         Double[] plannerFrameSd = {plannerMechSd, plannerProneSd};
@@ -530,7 +559,7 @@ public final class BenchCalibrationFit {
         List<long[]> sets = new ArrayList<>();
         sets.add(fitRange);
         sets.addAll(checkRanges);
-        String shapeName = shape == Shape.CORRECTION ? "‖δ‖²/3 I" : "Σ_m";
+        String shapeName = shape.symbol();
         for (int k = 0; k < sets.size(); k++) {
             long[] r = sets.get(k);
             String n = name(r, k == 0 ? "fit" : "held out");
@@ -559,9 +588,11 @@ public final class BenchCalibrationFit {
                     oldWeight), n, check(withMarking, oldSd, oldWeight)));
             System.out.println(row(String.format(Locale.ROOT, "hybrid, ML fit: a K + %.3f² I + %.4f Σ_m",
                     fm.registrationSdMm(), fm.weight()), n, check(csM, fm.registrationSdMm(), fm.weight())));
-            if (shape == Shape.CORRECTION) {
-                System.out.println(row(String.format(Locale.ROOT, "hybrid, ML fit: a K + (%.3f² + %.4f ‖δ‖²/3) I",
-                        f.registrationSdMm(), f.weight()), n, check(cs, f.registrationSdMm(), f.weight())));
+            for (Shape sh : new Shape[] {Shape.CORRECTION, Shape.SPREAD}) {
+                Fit x = fits.get(sh);
+                System.out.println(row(String.format(Locale.ROOT, "hybrid, ML fit: a K + %.3f² I + %.4f %s",
+                        x.registrationSdMm(), x.weight(), sh.symbol()), n,
+                        check(select(byShape.get(sh), r), x.registrationSdMm(), x.weight())));
             }
             if (plannerSd != null && plannerWeight != null) {
                 // The planner's defaults (the fit rounded), marking weight as the plans used it.

@@ -104,6 +104,8 @@ class BenchCalibrationFitTest {
         b.append(",hyb_marking_weight\n");
         b.append("3,L1,mechanics-only (supine frame),4,6,3,,,,,,,,,,,,,\n");
         b.append("3,L1,hybrid,1,2,3,1,2,3,0.1,0.2,0.3,10,20,30,1,2,3,0\n");
+        // the registration-only row follows the hybrid one, as BenchCalibration writes them
+        b.append("3,L1,registration-only,1,-4,15,,,,,,,,,,,,,\n");
         Path csv = dir.resolve("c.csv");
         Files.writeString(csv, b);
         List<BenchCalibrationFit.Case> cases = BenchCalibrationFit.read(csv, BenchCalibrationFit.Shape.MECHANICS);
@@ -129,6 +131,13 @@ class BenchCalibrationFitTest {
         assertEquals(25.0 / 3, g[4], SUM_ULPS);
         assertEquals(25.0 / 3, g[8], SUM_ULPS);
         assertEquals(0, g[1]);
+        // Spread shape: ρ = e_registration − e_hybrid = (0, −6, 12) mm, |ρ|² / 3 = 180 / 3 = 60 mm².
+        double[] sp = BenchCalibrationFit.read(csv, BenchCalibrationFit.Shape.SPREAD).get(0).shapeMm2();
+        assertEquals(60, sp[0], SUM_ULPS);
+        assertEquals(60, sp[8], SUM_ULPS);
+        assertEquals(0, sp[5]);
+        assertEquals(1, BenchCalibrationFit.read(csv, BenchCalibrationFit.Shape.SPREAD).size(),
+                "the registration-only row is not read as a case");
     }
 
     @Test

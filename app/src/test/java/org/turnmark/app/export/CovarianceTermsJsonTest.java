@@ -38,9 +38,9 @@ class CovarianceTermsJsonTest {
         assertEquals(PlanJson.toJson(p2), PlanJson.toJson(back));
         PlanResult.CovarianceTerms t = back.lesions().get(0).predictions().get(1).covarianceTerms();
         assertArrayEquals(terms.markingMm2(), t.markingMm2(), 0.0);
-        assertArrayEquals(terms.correctionMm(), t.correctionMm(), 0.0);
+        assertArrayEquals(terms.spreadMm(), t.spreadMm(), 0.0);
         assertEquals(1.25, t.registrationSdMm(), 0.0);
-        assertEquals(0.25, t.correctionWeight(), 0.0);
+        assertEquals(0.25, t.spreadWeight(), 0.0);
         assertEquals(0, t.markingWeight(), 0.0);
         // A prediction without terms writes none and reads back as null.
         assertNull(back.lesions().get(0).predictions().get(0).covarianceTerms());

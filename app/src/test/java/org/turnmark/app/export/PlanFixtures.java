@@ -49,7 +49,7 @@ final class PlanFixtures {
         stages.put("reference state", 10.0);
         Map<String, Map<String, Double>> mats = new LinkedHashMap<>();
         mats.put("fat", Map.of("mu_kpa", 0.3, "nu", 0.49, "density_kg_m3", 911.0));
-        PlanResult.ModelSummary model = new PlanResult.ModelSummary(6, 1000, 1300, 200, "sliding", mats,
+        PlanResult.ModelSummary model = new PlanResult.ModelSummary(6, 1000, 1300, 200, 40, "sliding", mats,
                 Map.of("supine reload", new PlanResult.SolveSummary(true, 8, 30, 0.42, 1e-9, 40.5, 2.5)));
         return new PlanResult(ResearchUse.FULL, Map.of("turnmark", "test"), "2026-01-01T00:00:00Z", input,
                 Map.of("prone_image", "00ff"), stages, model,

@@ -1,5 +1,6 @@
 package org.turnmark.app.pipeline;
 
+import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertThrows;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
@@ -51,5 +52,41 @@ class MechanicsModelTest {
         IllegalArgumentException e = assertThrows(IllegalArgumentException.class,
                 () -> MechanicsModel.build(SyntheticCase.grid(), withBlock(30, 40), ELEMENT_MM));
         assertTrue(e.getMessage().contains("disconnected"), e.getMessage());
+    }
+
+    /**
+     * Tissue cut by the field of view is held in place in both chest-wall conditions: a 10 mm fat layer on
+     * the chest wall joining the breast to the image's low-x face (outer voxel face at x = −101.25 mm).
+     * Exactly the nodes on that face are added to the fixed ones; the plain synthetic breast, clear of
+     * every image face, has none.
+     */
+    @Test
+    void tissueCutByTheFieldOfViewIsHeldInPlace() {
+        Volume v = SyntheticCase.labels();
+        Grid3 g = v.grid();
+        byte[] l = CaseInputs.labelBytes(v, "synthetic");
+        assertEquals(0, MechanicsModel.build(g, l, ELEMENT_MM).fieldOfViewNodes());
+        for (int n = 0; n < l.length; n++) {
+            double[] p = g.worldOf(n % g.nx(), (n / g.nx()) % g.ny(), n / (g.nx() * g.ny()));
+            if (p[0] <= -40 && p[1] >= 0 && p[1] <= 10 && Math.abs(p[2]) <= 30 && l[n] == 0) {
+                l[n] = 1;
+            }
+        }
+        MechanicsModel m = MechanicsModel.build(g, l, ELEMENT_MM);
+        double[] xyz = m.proneMesh().xyzMm();
+        int onFace = 0;
+        for (int n = 0; n < m.proneMesh().nodeCount(); n++) {
+            onFace += Math.abs(xyz[3 * n] + 101.25) < 1e-9 ? 1 : 0;
+        }
+        assertTrue(onFace > 0, "the layer reaches the image face");
+        assertEquals(onFace, m.fieldOfViewNodes());
+        for (boolean sliding : new boolean[] {true, false}) {
+            org.turnmark.mechanics.solve.NodeConstraints bc = m.constraints(sliding);
+            for (int n = 0; n < m.proneMesh().nodeCount(); n++) {
+                if (Math.abs(xyz[3 * n] + 101.25) < 1e-9) {
+                    assertEquals(org.turnmark.mechanics.solve.NodeConstraints.Kind.FIXED, bc.kind(n), "node " + n);
+                }
+            }
+        }
     }
 }

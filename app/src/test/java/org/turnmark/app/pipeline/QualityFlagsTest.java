@@ -75,4 +75,51 @@ class QualityFlagsTest {
                 20, 0), solve(0.7), 0, 8);
         assertFalse(flags.get(0).message().contains("held back"), flags.get(0).message());
     }
+
+    private static PlanResult.Prediction at(String method, double[] position, double[] covariance) {
+        return new PlanResult.Prediction(method, PlanResult.FRAME_SUPINE, position, new double[3], covariance, null,
+                null, null, null, null, null);
+    }
+
+    /**
+     * The registration-agreement flag warns exactly when the registration-only position lies outside the
+     * hybrid 95 % ellipsoid. Hybrid covariance 4 I mm² (SD 2 mm): the 95 % sphere has radius
+     * 2 √χ²₃(0.95) = 2 √7.81473 = 5.591 mm (χ²₃(0.95) from the NIST/SEMATECH e-Handbook table,
+     * §1.3.6.7.4). At 5 mm (d² = 6.25) the flag is ok, at 6 mm (d² = 9) it warns; both are far from the
+     * boundary, so no rounding decides them.
+     */
+    @Test
+    void registrationOnlyOutsideTheHybridEllipsoidIsAWarning() {
+        double[] cov = {4, 0, 0, 0, 4, 0, 0, 0, 4};
+        double[] h = {10, -20, 30};
+        java.util.List<PlanResult.QualityFlag> flags = new java.util.ArrayList<>();
+        QualityFlags.registrationSpread(flags, "L1", at(PlanResult.HYBRID, h, cov),
+                at(PlanResult.REGISTRATION, new double[] {10, -20, 35}, null));
+        QualityFlags.registrationSpread(flags, "L1", at(PlanResult.HYBRID, h, cov),
+                at(PlanResult.REGISTRATION, new double[] {10, -26, 30}, null));
+        QualityFlags.registrationSpread(flags, "L1", at(PlanResult.HYBRID, h, null),
+                at(PlanResult.REGISTRATION, new double[] {10, -26, 30}, null));
+        assertEquals(PlanResult.QualityFlag.OK, flags.get(0).severity(), flags.get(0).message());
+        assertTrue(flags.get(0).message().contains("differ by 5.0 mm"), flags.get(0).message());
+        assertEquals(PlanResult.QualityFlag.WARNING, flags.get(1).severity(), flags.get(1).message());
+        assertTrue(flags.get(1).message().contains("differ by 6.0 mm"), flags.get(1).message());
+        assertEquals(PlanResult.QualityFlag.OK, flags.get(2).severity(), "no ellipsoid: nothing to compare against");
+        assertEquals("registration agreement", flags.get(1).check());
+    }
+
+    /** The lesion loop adds the registration-agreement flag only when both registrations ran. */
+    @Test
+    void registrationAgreementNeedsBothRegistrations() {
+        double[] cov = {4, 0, 0, 0, 4, 0, 0, 0, 4};
+        PlanResult.Prediction h = at(PlanResult.HYBRID, new double[3], cov);
+        PlanResult.Prediction r = at(PlanResult.REGISTRATION, new double[] {1, 0, 0}, null);
+        java.util.List<PlanResult.QualityFlag> flags = new java.util.ArrayList<>();
+        QualityFlags.disagreement(flags, java.util.List.of(new PlanResult.LesionResult("L1", "right", new double[3],
+                new double[3], "mark", null, java.util.List.of(h, r), java.util.List.of())));
+        assertEquals(1, flags.stream().filter(f -> f.check().equals("registration agreement")).count());
+        flags.clear();
+        QualityFlags.disagreement(flags, java.util.List.of(new PlanResult.LesionResult("L1", "right", new double[3],
+                new double[3], "mark", null, java.util.List.of(h), java.util.List.of())));
+        assertEquals(0, flags.stream().filter(f -> f.check().equals("registration agreement")).count());
+    }
 }

@@ -1,0 +1,89 @@
+package org.turnmark.mechanics.mesh;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import org.junit.jupiter.api.Test;
+import org.turnmark.geom.Affine3D;
+import org.turnmark.geom.Grid3;
+
+class FieldOfViewEdgeTest {
+
+    private static LabelMesh mesh(Grid3 g, byte[] labels, double h) {
+        return LabelMesher.mesh(g, labels, new MesherConfig(h, MesherConfig.DEFAULT_TISSUE_FRACTION,
+                MesherConfig.DEFAULT_LESION_FRACTION, 0.0, MesherConfig.DEFAULT_MAX_ELEMENTS));
+    }
+
+    /**
+     * A slab of fat that fills the image along x and z but not along y: its x and z faces are cuts, its y
+     * faces are free surfaces. With 2 mm voxels and 4 mm elements the lattice meets every image face, so
+     * the cut nodes are exactly the nodes with a lattice index 0 or last along x or z.
+     */
+    @Test
+    void nodesOnTheImageFacesAreCutAndNodesInsideAreNot() {
+        int nx = 6;
+        int ny = 6;
+        int nz = 4;
+        Grid3 g = Grid3.axisAligned(nx, ny, nz, 2, 2, 2, 10, -20, 5);
+        byte[] labels = new byte[nx * ny * nz];
+        for (int k = 0; k < nz; k++) {
+            for (int j = 2; j < 4; j++) {
+                for (int i = 0; i < nx; i++) {
+                    labels[g.index(i, j, k)] = 1;
+                }
+            }
+        }
+        HexMesh m = mesh(g, labels, 4).mesh();
+        boolean[] cut = FieldOfViewEdge.cutNodes(m, g);
+        // the image spans x from 10 − 1 to 10 + 11 mm, z from 5 − 1 to 5 + 7 mm (outer voxel faces)
+        double[] xyz = m.xyzMm();
+        int expected = 0;
+        for (int n = 0; n < m.nodeCount(); n++) {
+            double x = xyz[3 * n];
+            double z = xyz[3 * n + 2];
+            boolean onFace = Math.abs(x - 9) < 1e-9 || Math.abs(x - 21) < 1e-9 || Math.abs(z - 4) < 1e-9
+                    || Math.abs(z - 12) < 1e-9;
+            assertEquals(onFace, cut[n], "node " + n + " at x " + x + ", z " + z);
+            expected += onFace ? 1 : 0;
+        }
+        // 3 × 1 × 2 cells (x, y, z) → 4 × 2 × 3 lattice points; not on an x or z face: 2 × 2 × 1
+        assertEquals(4 * 2 * 3 - 2 * 2, expected);
+        assertEquals(expected, FieldOfViewEdge.count(cut));
+    }
+
+    /** Tissue that keeps clear of the image faces has no cut, also under an oblique voxel-to-world affine. */
+    @Test
+    void tissueInsideTheImageHasNoCut() {
+        int n = 8;
+        double c = Math.cos(0.3);
+        double s = Math.sin(0.3);
+        Affine3D a = Affine3D.fromRowMajor(new double[] {2 * c, -2 * s, 0, 4, 2 * s, 2 * c, 0, -7, 0, 0, 2, 1,
+            0, 0, 0, 1});
+        Grid3 g = new Grid3(n, n, n, a);
+        byte[] labels = new byte[n * n * n];
+        for (int k = 2; k < 6; k++) {
+            for (int j = 2; j < 6; j++) {
+                for (int i = 2; i < 6; i++) {
+                    labels[g.index(i, j, k)] = 2;
+                }
+            }
+        }
+        HexMesh m = mesh(g, labels, 2).mesh();
+        boolean[] cut = FieldOfViewEdge.cutNodes(m, g);
+        for (boolean b : cut) {
+            assertFalse(b);
+        }
+        // the same block grown to the first voxel layer along z is cut on that face only
+        for (int j = 2; j < 6; j++) {
+            for (int i = 2; i < 6; i++) {
+                labels[g.index(i, j, 0)] = 2;
+                labels[g.index(i, j, 1)] = 2;
+            }
+        }
+        HexMesh m2 = mesh(g, labels, 2).mesh();
+        boolean[] cut2 = FieldOfViewEdge.cutNodes(m2, g);
+        assertEquals(5 * 5, FieldOfViewEdge.count(cut2), "the 5 × 5 lattice points of the z = −½ face");
+        assertTrue(cut2.length > 25);
+    }
+}
