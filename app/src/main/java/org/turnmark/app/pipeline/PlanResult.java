@@ -155,19 +155,19 @@ public record PlanResult(String caution, Map<String, String> software, String cr
 
     /**
      * The terms of the hybrid covariance, all in the supine image frame (mm²):
-     * Σ = markingWeight · marking + (registrationSdMm² + spreadWeight · |spread|² / 3) I.
+     * Σ = markingWeight · marking + registrationSdMm² I + mechanicsWeight · mechanics.
      *
      * @param markingMm2        lesion-marking error propagated through the mechanics map (J Σ Jᵀ), rotated
      *                          into the supine frame, 3×3 row-major (mm²)
      * @param markingWeight     1 when the centroid is the mark or its intensity-weighted refinement, 0 when
      *                          it was refined on a lesion label
      * @param registrationSdMm  isotropic SD of the registration's own error (mm)
-     * @param spreadMm          hybrid minus registration-only prediction, supine frame (mm): where the same
-     *                          registration started from the mechanics and from a rigid start disagree
-     * @param spreadWeight      expected squared hybrid error per squared spread (dimensionless)
+     * @param mechanicsMm2      the mechanics-only covariance in the supine frame (R Σ_m Rᵀ + s_m² I),
+     *                          3×3 row-major (mm²)
+     * @param mechanicsWeight   the share of it the hybrid keeps (dimensionless)
      */
     public record CovarianceTerms(double[] markingMm2, double markingWeight, double registrationSdMm,
-                                  double[] spreadMm, double spreadWeight) {
+                                  double[] mechanicsMm2, double mechanicsWeight) {
     }
 
     /**

@@ -298,11 +298,11 @@ public final class Planner {
                 double[] xr = reg.registrationOnlyPoint(x0);
                 // Hybrid covariance (docs/planner.md, Uncertainty): the marking term only when the centroid was
                 // not refined on a lesion label (a label centroid carries no hand-marking error), the
-                // registration's own error, and an isotropic error growing with the spread between the hybrid and
-                // the registration-only prediction (the same registration from two starts) at the lesion.
+                // registration's own error, and a share of the mechanics-only covariance (supine frame) that the
+                // registration does not remove.
                 PlanResult.CovarianceTerms terms = covMs == null ? null : new PlanResult.CovarianceTerms(
                         reg.rotateCovariance(markCov), li.centroid.onLabel() ? 0 : 1, c.priors().registrationSdMm(),
-                        diff(xh, xr), SupineStage.HYBRID_SPREAD_WEIGHT);
+                        covMs, SupineStage.HYBRID_MECHANICS_WEIGHT);
                 preds.add(prediction(PlanResult.HYBRID, PlanResult.FRAME_SUPINE, x0, xh, terms,
                         describe(li.side, xh, reg.hybridPoint(nip), surfaces, supNodesS), err(truthS, xh), ellSupine));
                 preds.add(prediction(PlanResult.REGISTRATION, PlanResult.FRAME_SUPINE, x0, xr, null,
@@ -364,9 +364,9 @@ public final class Planner {
                 List.of(String.format(Locale.ROOT, "lesion marking (isotropic %.3g mm SD, propagated through the local "
                                 + "deformation gradient; hybrid: only for centroids not refined on a lesion label)",
                                 c.priors().lesionMarkingSdMm()),
-                        String.format(Locale.ROOT, "registration (hybrid only, isotropic: %.3g mm SD plus %.3g x the "
-                                + "squared distance between the hybrid and registration-only predictions / 3)",
-                                c.priors().registrationSdMm(), SupineStage.HYBRID_SPREAD_WEIGHT),
+                        String.format(Locale.ROOT, "registration (hybrid only: isotropic %.3g mm SD plus %.3g x the "
+                                + "mechanics-only covariance in the supine frame)",
+                                c.priors().registrationSdMm(), SupineStage.HYBRID_MECHANICS_WEIGHT),
                         String.format(Locale.ROOT, "rigid alignment and model error (mechanics-only in the supine frame, "
                                 + "isotropic %.3g mm SD)", c.priors().mechanicsSupineSdMm()),
                         String.format(Locale.ROOT, "model error (mechanics-only in the prone frame, isotropic %.3g mm SD)",
@@ -414,12 +414,14 @@ public final class Planner {
                 p.covarianceMm2(), p.ellipsoid68(), p.ellipsoid95(), p.descriptors(), null, err, terms);
     }
 
-    /** Σ = markingWeight · marking + (registrationSdMm² + spreadWeight · |spread|² / 3) I (mm²). */
+    /** Σ = markingWeight · marking + registrationSdMm² I + mechanicsWeight · mechanics (mm²). */
     static double[] covariance(PlanResult.CovarianceTerms t) {
-        double[] d = t.spreadMm();
-        double v = t.registrationSdMm() * t.registrationSdMm()
-                + t.spreadWeight() * (d[0] * d[0] + d[1] * d[1] + d[2] * d[2]) / 3;
+        double v = t.registrationSdMm() * t.registrationSdMm();
         double[] s = scale(t.markingMm2(), t.markingWeight());
+        double[] m = t.mechanicsMm2();
+        for (int k = 0; k < 9; k++) {
+            s[k] += t.mechanicsWeight() * m[k];
+        }
         s[0] += v;
         s[4] += v;
         s[8] += v;

@@ -478,8 +478,7 @@ public final class BenchCalibration {
         b.append("# errors (truth - prediction) and covariances in the supine image frame (prone-frame rows: the "
                 + "prone image frame), world RAS+ mm / mm2; cov_*: the prediction's covariance; hybrid rows: "
                 + "hyb_marking_* (marking term), hyb_mechanics_* (mechanics-only covariance), hyb_registration_sd_mm; "
-                + "cov = marking_weight * marking + (sd^2 + spread_weight * |hybrid - registration-only position|^2 / 3)"
-                + " I; mechanics-only rows: cov = sampled covariance (rotated into the supine frame for supine-frame "
+                + "cov = marking_weight * marking + sd^2 I + mechanics_weight * mechanics; mechanics-only rows: cov = sampled covariance (rotated into the supine frame for supine-frame "
                 + "rows) + mech_model_sd_mm^2 I\n");
         b.append("seed,lesion,method,error_mm,error_x_mm,error_y_mm,error_z_mm,d2,inside_68,inside_95,"
                 + "semi_axis95_1_mm,semi_axis95_2_mm,semi_axis95_3_mm,samples_ok,samples_requested,plan_s");
@@ -488,7 +487,7 @@ public final class BenchCalibration {
                 b.append(',').append(prefix).append(n).append("_mm2");
             }
         }
-        b.append(",hyb_registration_sd_mm,hyb_marking_weight,hyb_spread_weight,centroid_refined_on_label,"
+        b.append(",hyb_registration_sd_mm,hyb_marking_weight,hyb_mechanics_weight,centroid_refined_on_label,"
                 + "mech_model_sd_mm,alignment_error_at_lesion_mm\n");
         for (Row r : rows) {
             b.append(r.seed()).append(',').append(r.lesion()).append(',').append(r.method()).append(',')
@@ -511,7 +510,7 @@ public final class BenchCalibration {
             }
             b.append(',').append(t == null ? "" : num(t.registrationSdMm())).append(',')
                     .append(t == null ? "" : num(t.markingWeight())).append(',')
-                    .append(t == null ? "" : num(t.spreadWeight())).append(',')
+                    .append(t == null ? "" : num(t.mechanicsWeight())).append(',')
                     .append(r.refinement() != null && r.refinement().startsWith("centroid of label")).append(',')
                     .append(r.mechanicsModelSdMm() == null ? "" : num(r.mechanicsModelSdMm())).append(',')
                     .append(r.alignmentErrorMm() == null ? "" : num(r.alignmentErrorMm())).append('\n');

@@ -28,12 +28,12 @@ import org.turnmark.geom.ResearchUse;
  * <p>Model (docs/planner.md, Uncertainty): for lesion i the hybrid error e_i (truth − prediction, supine
  * frame, mm) is taken as Gaussian N(0, Σ_i) with Σ_i = a_i K_i + s² I + w G_i: K_i the lesion-marking term
  * and a_i its weight as the plan used it (0 for a centroid refined on a lesion label), s the registration
- * SD (mm) and G_i a per-lesion shape with weight w: {@link Shape#SPREAD} (the planner's model) G_i =
- * |ρ_i|²/3 I with ρ_i the hybrid minus the registration-only prediction (from the CSV,
- * ρ = e_registration − e_hybrid), {@link Shape#CORRECTION} G_i = |δ_i|²/3 I with δ_i the hybrid minus the
- * mechanics-only prediction (the registration's correction at the lesion; δ = e_mechanics − e_hybrid; the
- * planner's model before the spread), or {@link Shape#MECHANICS} G_i = the mechanics-only covariance (the
- * first model tried). Every shape is fitted and printed with its AIC; {@code --shape} picks the one the
+ * SD (mm) and G_i a per-lesion shape with weight w: {@link Shape#MECHANICS} (the planner's model) G_i = the
+ * mechanics-only covariance in the supine frame, {@link Shape#SPREAD} G_i = |ρ_i|²/3 I with ρ_i the hybrid
+ * minus the registration-only prediction (from the CSV, ρ = e_registration − e_hybrid), or
+ * {@link Shape#CORRECTION} G_i = |δ_i|²/3 I with δ_i the hybrid minus the mechanics-only prediction (the
+ * registration's correction at the lesion; δ = e_mechanics − e_hybrid). {@code --loo FROM-TO} fits every
+ * shape to the pooled seeds and checks each lesion against the fit to the others (leave-one-out). Every shape is fitted and printed with its AIC; {@code --shape} picks the one the
  * planner-default rows use. The fit maximises the Gaussian log-likelihood
  * −½ Σ_i (log det Σ_i + e_iᵀ Σ_i⁻¹ e_i) over s &gt; 0 and w ≥ 0: for each w the profile over log s by Brent's
  * method, w on a grid and then by Brent's method around the best grid point. Standard errors from the
@@ -48,7 +48,7 @@ import org.turnmark.geom.ResearchUse;
  *
  * <pre>
  * java -cp app/target/turnmark.jar:app/target/test-classes org.turnmark.app.bench.BenchCalibrationFit \
- *   --csv FILE.csv --fit 1-24 --check 25-48 [--shape correction|mechanics|spread] [--planner-sd-mm S --planner-weight W]
+ *   --csv FILE.csv --fit 1-24 --check 25-48 [--shape mechanics|correction|spread] [--planner-sd-mm S --planner-weight W] | --loo FROM-TO
  * </pre>
  */
 public final class BenchCalibrationFit {
@@ -81,13 +81,13 @@ public final class BenchCalibrationFit {
 
     /** The per-lesion shape G of the weighted term. */
     enum Shape {
-        /** ‖δ‖²/3 I, δ = hybrid − mechanics-only prediction (the planner's model before {@link #SPREAD}). */
+        /** ‖δ‖²/3 I, δ = hybrid − mechanics-only prediction. */
         CORRECTION,
-        /** The mechanics-only covariance in the supine frame. */
+        /** The mechanics-only covariance in the supine frame (the planner's model). */
         MECHANICS,
         /**
          * ‖ρ‖²/3 I, ρ = hybrid − registration-only prediction: the spread of the same registration
-         * started from the mechanics and from a rigid start (the planner's model).
+         * started from the mechanics and from a rigid start.
          */
         SPREAD;
 
@@ -195,6 +195,44 @@ public final class BenchCalibrationFit {
 
     /** Coverage counts and mean d² of a covariance model over cases. */
     record Check(int n, int inside68, int inside95, double meanD2) {
+    }
+
+    /**
+     * Leave-one-out result: each case checked against the fit to all the others.
+     *
+     * @param check       coverage and mean d² of the left-out cases
+     * @param negLogLik   −Σ log N(e_i; 0, Σ_i) of the left-out cases (constant 3/2 log 2π per case omitted):
+     *                    the out-of-sample counterpart of {@link Fit#negLogLik()}, lower is better
+     */
+    record Loo(Check check, double negLogLik) {
+    }
+
+    /**
+     * Leave-one-out cross-validation of the fit: for each case, (s, w) fitted to the others
+     * ({@link #fit}, or the profile over s alone when {@code mechanicsOnly}) and that case checked.
+     */
+    static Loo leaveOneOut(List<Case> cases, boolean mechanicsOnly) {
+        List<Case> left = new ArrayList<>();
+        double nll = 0;
+        for (int i = 0; i < cases.size(); i++) {
+            List<Case> rest = new ArrayList<>(cases);
+            Case c = rest.remove(i);
+            double sd;
+            double w;
+            if (mechanicsOnly) {
+                sd = profileSd(rest, 0);
+                w = 0;
+            } else {
+                Fit f = fit(rest);
+                sd = f.registrationSdMm();
+                w = f.weight();
+            }
+            // a case stands for itself with its own fitted (s, w): shape weight folded into the case
+            double[] cov = covariance(c, sd, w);
+            left.add(new Case(c.seed(), c.errorMm(), cov, 1, new double[9]));
+            nll += negLogLik(List.of(new Case(c.seed(), c.errorMm(), cov, 1, new double[9])), 0, 0);
+        }
+        return new Loo(check(left, 0, 0), nll);
     }
 
     /** Checks Σ(s, w) on the cases: d² against χ²₃(0.6827) and χ²₃(0.95). */
@@ -469,13 +507,14 @@ public final class BenchCalibrationFit {
         List<Path> csvs = new ArrayList<>();
         long[] fitRange = null;
         List<long[]> checkRanges = new ArrayList<>();
-        Shape shape = Shape.SPREAD;
+        Shape shape = Shape.MECHANICS;
         double oldSd = 1.5;
         double oldWeight = 0.25;
         Double plannerSd = null;
         Double plannerWeight = null;
         Double plannerMechSd = null;
         Double plannerProneSd = null;
+        long[] looRange = null;
         for (int i = 0; i + 1 < args.length; i += 2) {
             String v = args[i + 1];
             switch (args[i]) {
@@ -497,13 +536,19 @@ public final class BenchCalibrationFit {
                 case "--planner-weight" -> plannerWeight = Double.parseDouble(v);
                 case "--planner-mech-sd-mm" -> plannerMechSd = Double.parseDouble(v);
                 case "--planner-prone-sd-mm" -> plannerProneSd = Double.parseDouble(v);
+                case "--loo" -> looRange = range(v);
                 default -> throw new IllegalArgumentException("unknown option " + args[i]);
             }
+        }
+        if (!csvs.isEmpty() && looRange != null) {
+            looReport(csvs, looRange);
+            return;
         }
         if (csvs.isEmpty() || fitRange == null || checkRanges.isEmpty()) {
             System.err.println("usage: BenchCalibrationFit --csv FILE[,FILE...] --fit FROM-TO --check FROM-TO[,FROM-TO...] "
                     + "[--shape correction|mechanics|spread] [--compare-sd-mm 1.5 --compare-weight 0.25] "
-                    + "[--planner-sd-mm S --planner-weight W] [--planner-mech-sd-mm S_M] [--planner-prone-sd-mm S_P]");
+                    + "[--planner-sd-mm S --planner-weight W] [--planner-mech-sd-mm S_M] [--planner-prone-sd-mm S_P] "
+                    + "[--loo FROM-TO]");
             System.exit(2);
             return;
         }
@@ -600,5 +645,47 @@ public final class BenchCalibrationFit {
                         plannerSd, plannerWeight, shapeName), n, check(cs, plannerSd, plannerWeight)));
             }
         }
+    }
+
+    /**
+     * Pooled fit and leave-one-out check of every hybrid shape and of both mechanics frames' isotropic
+     * term, on the seeds of {@code range} (a table, for docs/benchmarks.md).
+     */
+    static void looReport(List<Path> csvs, long[] range) throws IOException {
+        String n = name(range, "pooled");
+        System.out.println("# " + ResearchUse.SHORT);
+        System.out.println("| covariance | seeds | lesions | pooled ML fit | AIC | LOO −log L | LOO inside 68 % | "
+                + "LOO inside 95 % (95 % CI) | LOO mean d² |");
+        System.out.println("|---|---|---|---|---|---|---|---|---|");
+        for (Shape sh : Shape.values()) {
+            List<Case> cs = select(readAll(csvs, sh), range);
+            Fit f = fit(cs);
+            Loo l = leaveOneOut(cs, false);
+            System.out.println(looRow(String.format(Locale.ROOT, "hybrid, a K + s² I + w %s", sh.symbol()), n, cs.size(),
+                    String.format(Locale.ROOT, "s = %.3f mm (SE %.3f), w = %.4f (SE %.4f)", f.registrationSdMm(),
+                            f.sdSeMm(), f.weight(), f.weightSe()), 2 * f.negLogLik() + 4, l));
+        }
+        for (String frame : new String[] {BenchCalibration.MECHANICS_SUPINE, BenchCalibration.MECHANICS_PRONE}) {
+            List<Case> all1 = new ArrayList<>();
+            for (Path p : csvs) {
+                all1.addAll(readMechanics(p, frame));
+            }
+            List<Case> cs = select(all1, range);
+            if (cs.isEmpty()) {
+                continue;
+            }
+            double sd = profileSd(cs, 0);
+            Loo l = leaveOneOut(cs, true);
+            System.out.println(looRow(frame + ", Σ_m + s² I", n, cs.size(), String.format(Locale.ROOT,
+                    "s = %.3f mm (SE %.3f)", sd, sdStandardError(cs, sd, 0)), 2 * negLogLik(cs, sd, 0) + 2, l));
+        }
+    }
+
+    private static String looRow(String what, String seeds, int lesions, String fit, double aic, Loo l) {
+        Check c = l.check();
+        Coverage.Interval ci95 = Coverage.clopperPearson(c.inside95(), c.n(), 0.95);
+        return String.format(Locale.ROOT, "| %s | %s | %d | %s | %.2f | %.2f | %d / %d | %d / %d, %.1f %% (%.1f–%.1f %%) | %.2f |",
+                what, seeds, lesions, fit, aic, l.negLogLik(), c.inside68(), c.n(), c.inside95(), c.n(),
+                100.0 * c.inside95() / c.n(), 100 * ci95.lower(), 100 * ci95.upper(), c.meanD2());
     }
 }

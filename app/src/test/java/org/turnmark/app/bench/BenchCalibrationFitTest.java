@@ -54,6 +54,42 @@ class BenchCalibrationFitTest {
         assertEquals(expected, BenchCalibrationFit.profileSd(cases, 0), CLOSED_FORM_REL_TOL * expected);
     }
 
+    /**
+     * Leave-one-out: each lesion is checked against the fit to the others. Isotropic case (w = 0, closed
+     * form as above): left-out lesion i has d² = |e_i|² / s_(−i)² with s_(−i)² = Σ_(j≠i) |e_j|² / (3(N − 1)),
+     * and its −log L term ½(3 log s_(−i)² + d²); the sums are compared to that hand computation.
+     */
+    @Test
+    void leaveOneOutChecksEachLesionAgainstTheFitToTheOthers() {
+        Random r = new Random(SEED + 7);
+        List<BenchCalibrationFit.Case> cases = new ArrayList<>();
+        double[] sq = new double[20];
+        double total = 0;
+        for (int i = 0; i < sq.length; i++) {
+            double[] e = {1.5 * r.nextGaussian(), 1.5 * r.nextGaussian(), 1.5 * r.nextGaussian()};
+            sq[i] = e[0] * e[0] + e[1] * e[1] + e[2] * e[2];
+            total += sq[i];
+            cases.add(new BenchCalibrationFit.Case(i, e, new double[9], 0, new double[9]));
+        }
+        double chi95 = org.turnmark.app.uncertainty.Ellipsoid.chiSquare3(0.95);
+        int inside = 0;
+        double sumD2 = 0;
+        double nll = 0;
+        for (int i = 0; i < sq.length; i++) {
+            double v = (total - sq[i]) / (3.0 * (sq.length - 1));
+            double d2 = sq[i] / v;
+            inside += d2 <= chi95 ? 1 : 0;
+            sumD2 += d2;
+            nll += 0.5 * (3 * Math.log(v) + d2);
+        }
+        BenchCalibrationFit.Loo loo = BenchCalibrationFit.leaveOneOut(cases, true);
+        assertEquals(sq.length, loo.check().n());
+        assertEquals(inside, loo.check().inside95());
+        // the profile's Brent tolerance (1e-10 relative on log s) carries into d² at about that size
+        assertEquals(sumD2 / sq.length, loo.check().meanD2(), CLOSED_FORM_REL_TOL * sumD2 / sq.length);
+        assertEquals(nll, loo.negLogLik(), CLOSED_FORM_REL_TOL * Math.abs(nll));
+    }
+
     @Test
     void recoversKnownParametersFromSyntheticGaussianErrors() {
         Random r = new Random(SEED);

@@ -21,7 +21,7 @@ class CovarianceTermsJsonTest {
         PlanResult.LesionResult l = plan.lesions().get(0);
         PlanResult.Prediction h = l.predictions().get(1);
         PlanResult.CovarianceTerms terms = new PlanResult.CovarianceTerms(new double[] {2, 0, 0, 0, 2, 0, 0, 0, 2}, 0,
-                1.25, new double[] {3, 0, 0}, 0.25);
+                1.25, new double[] {4, 0.5, 0, 0.5, 1, 0, 0, 0, 0.25}, 0.25);
         PlanResult.Prediction withTerms = new PlanResult.Prediction(h.method(), h.frame(), h.positionRasMm(),
                 h.displacementMm(), new double[] {2.3125, 0, 0, 0, 2.3125, 0, 0, 0, 2.3125}, null, null, null,
                 null, 1.5, terms);
@@ -38,9 +38,9 @@ class CovarianceTermsJsonTest {
         assertEquals(PlanJson.toJson(p2), PlanJson.toJson(back));
         PlanResult.CovarianceTerms t = back.lesions().get(0).predictions().get(1).covarianceTerms();
         assertArrayEquals(terms.markingMm2(), t.markingMm2(), 0.0);
-        assertArrayEquals(terms.spreadMm(), t.spreadMm(), 0.0);
+        assertArrayEquals(terms.mechanicsMm2(), t.mechanicsMm2(), 0.0);
         assertEquals(1.25, t.registrationSdMm(), 0.0);
-        assertEquals(0.25, t.spreadWeight(), 0.0);
+        assertEquals(0.25, t.mechanicsWeight(), 0.0);
         assertEquals(0, t.markingWeight(), 0.0);
         // A prediction without terms writes none and reads back as null.
         assertNull(back.lesions().get(0).predictions().get(0).covarianceTerms());
