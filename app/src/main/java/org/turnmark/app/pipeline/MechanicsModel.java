@@ -100,7 +100,8 @@ public final class MechanicsModel {
      *                       mismatch may exceed {@link #REFERENCE_MAX_MISMATCH_MM}); 0 when none
      */
     public record Reference(double[] referenceXyzMm, double[] proneU, int iterations, double residualMm,
-                            SolveResult lastSolve, double seconds, int heldNodes) {
+                            SolveResult lastSolve, double seconds, int heldNodes, double withinPercent,
+                            boolean fallback) {
     }
 
     /** Thrown when the reference iteration does not reach its tolerance. */
@@ -299,7 +300,7 @@ public final class MechanicsModel {
         double[] x = rs.maxMismatchMm() <= tol ? subtract(proneMesh.xyzMm(), u)
                 : rs.reference().xyzMm();
         return new Reference(x, u, rs.iterations(), rs.maxMismatchMm(), rs.lastSolve(),
-                (System.nanoTime() - t0) / 1e9, rs.heldNodes());
+                (System.nanoTime() - t0) / 1e9, rs.heldNodes(), rs.withinPercent(), rs.fallback());
     }
 
     /** Anderson depth of the reference iteration (the mechanics module's default). */

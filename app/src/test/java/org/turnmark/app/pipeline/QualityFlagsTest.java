@@ -66,13 +66,13 @@ class QualityFlagsTest {
     void heldBackNodesAreReportedInTheConvergenceFlag() {
         java.util.List<PlanResult.QualityFlag> flags = new java.util.ArrayList<>();
         QualityFlags.mechanics(flags, new MechanicsModel.Reference(new double[3], new double[3], 14, 3.24, solve(0.6),
-                20, 12), solve(0.7), 0, 8);
+                20, 12, 99.2, false), solve(0.7), 0, 8);
         String msg = flags.get(0).message();
         assertEquals("finite-element convergence", flags.get(0).check());
         assertTrue(msg.contains("the furthest 3.24 mm (12 nodes were held back"), msg);
         flags.clear();
         QualityFlags.mechanics(flags, new MechanicsModel.Reference(new double[3], new double[3], 9, 0.4, solve(0.6),
-                20, 0), solve(0.7), 0, 8);
+                20, 0, 100, false), solve(0.7), 0, 8);
         assertFalse(flags.get(0).message().contains("held back"), flags.get(0).message());
     }
 
@@ -121,5 +121,27 @@ class QualityFlagsTest {
         QualityFlags.disagreement(flags, java.util.List.of(new PlanResult.LesionResult("L1", "right", new double[3],
                 new double[3], "mark", null, java.util.List.of(h), java.util.List.of())));
         assertEquals(0, flags.stream().filter(f -> f.check().equals("registration agreement")).count());
+    }
+
+    /**
+     * A reference state accepted by the fallback rule is a warning that gives the share of nodes within the
+     * tolerance, the furthest mismatch and the rule; one that met its rule is ok.
+     */
+    @Test
+    void aReferenceStateAcceptedByTheFallbackRuleIsAWarning() {
+        java.util.List<PlanResult.QualityFlag> flags = new java.util.ArrayList<>();
+        QualityFlags.mechanics(flags, new MechanicsModel.Reference(new double[3], new double[3], 41, 1.29, solve(0.6),
+                20, 0, 97.5, true), solve(0.7), 0, 8);
+        PlanResult.QualityFlag f = flags.get(0);
+        assertEquals("finite-element convergence", f.check());
+        assertEquals(PlanResult.QualityFlag.WARNING, f.severity());
+        assertTrue(f.message().contains("97.5 % of the nodes within 0.50 mm"), f.message());
+        assertTrue(f.message().contains("the furthest at 1.29 mm"), f.message());
+        assertTrue(f.message().contains("at least 95 %"), f.message());
+        flags.clear();
+        QualityFlags.mechanics(flags, new MechanicsModel.Reference(new double[3], new double[3], 9, 0.8, solve(0.6),
+                20, 0, 99.5, false), solve(0.7), 0, 8);
+        assertEquals(PlanResult.QualityFlag.OK, flags.get(0).severity(), flags.get(0).message());
+        assertTrue(flags.get(0).message().contains("99.5 % of the nodes"), flags.get(0).message());
     }
 }

@@ -21,8 +21,13 @@ import org.turnmark.mechanics.mesh.HexMesh;
  * @param heldNodes          nodes whose step was held back in the returned iterate so that no element of
  *                           the reference collapses; their mismatch may exceed the coarse bound (see
  *                           {@link ReferenceStateSolver}); 0 when none
+ * @param withinPercent      share of the nodes (percent) within the tolerance in the returned state; NaN
+ *                           for reverse gravity, which has no tolerance
+ * @param fallback           true when the iteration did not meet its rule and its best iterate was
+ *                           accepted by the fallback rule ({@link ReferenceStateConfig#FALLBACK_PERCENTILE})
  */
 public record ReferenceStateResult(HexMesh reference, double[] uToLoaded, int iterations, double maxMismatchMm,
                                    double[] mismatchHistoryMm, int newtonIterations, int linearIterations,
-                                   long timeMs, String method, SolveResult lastSolve, int heldNodes) {
+                                   long timeMs, String method, SolveResult lastSolve, int heldNodes,
+                                   double withinPercent, boolean fallback) {
 }

@@ -215,7 +215,7 @@ public final class ReferenceStateSolver {
                         Arrays.copyOf(history, k + 1), newton, linear, (System.nanoTime() - t0) / 1_000_000,
                         "fixed-point (Anderson " + m + ")" + (heldBack == 0 ? ""
                                 : "; " + heldBack + " node steps held back to keep elements from collapsing"), r,
-                        heldNow);
+                        heldNow, withinPercent(f, rcfg.toleranceMm()), false);
             }
             // Safeguard: Anderson mixing can go unstable on a strongly nonlinear map (the mismatch
             // then grows step after step). When the RMS mismatch grows, restart the mixing from the
@@ -231,6 +231,11 @@ public final class ReferenceStateSolver {
             bestHistory[k] = rmsBest;
             int w = rcfg.stallWindow();
             if (w > 0 && k >= w && rmsBest > (1 - ReferenceStateConfig.STALL_PROGRESS) * bestHistory[k - w]) {
+                ReferenceStateResult fb = fallback(solver, loaded, xObs, xBest, uBest, gravityMs2, rcfg, k + 1,
+                        history, newton, linear, t0, m, heldBack);
+                if (fb != null) {
+                    return fb;
+                }
                 throw new SolverDivergedException(String.format("reference-state iteration stalled: the RMS nodal "
                         + "mismatch (best %.4g mm, max %.4g mm) fell by less than %.0f %% in the last %d forward solves",
                         rmsBest, mismatch, 100 * ReferenceStateConfig.STALL_PROGRESS, w), Double.NaN, 1);
@@ -290,9 +295,73 @@ public final class ReferenceStateSolver {
                 heldBack += holdBack(x, xPrev, hex, detLoaded, detPrev, detWork, held);
             }
         }
+        if (rmsBest < Double.POSITIVE_INFINITY) {
+            ReferenceStateResult fb = fallback(solver, loaded, xObs, xBest, uBest, gravityMs2, rcfg,
+                    rcfg.maxIterations(), history, newton, linear, t0, m, heldBack);
+            if (fb != null) {
+                return fb;
+            }
+        }
         throw new SolverDivergedException(String.format("reference-state iteration did not reach %.3g mm in %d"
                 + " forward solves (last max nodal mismatch %.4g mm)", rcfg.toleranceMm(), rcfg.maxIterations(),
                 mismatch), Double.NaN, 1);
+    }
+
+    /**
+     * The fallback of the coarse rule ({@link ReferenceStateConfig#FALLBACK_PERCENTILE}): the best iterate,
+     * solved again at the configured tolerances from its own displacement; returned when
+     * {@link #fallbackAccepts} holds, else null (also when that solve fails).
+     */
+    private static ReferenceStateResult fallback(HyperelasticSolver solver, HexMesh loaded, double[] xObs,
+                                                 double[] xBest, double[] uBest, double[] gravityMs2,
+                                                 ReferenceStateConfig rcfg, int solves, double[] history, int newton,
+                                                 int linear, long t0, int m, int heldBack) {
+        if (rcfg.maxMismatchMm() <= rcfg.toleranceMm()) {
+            return null;
+        }
+        SolveResult r;
+        try {
+            solver.setTolerances(0, 0);
+            solver.moveReference(xBest);
+            r = solver.solve(gravityMs2, Progress.NONE, uBest);
+        } catch (InvertedElementException | SolverDivergedException ex) {
+            return null;
+        }
+        double[] f = new double[xObs.length];
+        double mismatch = mismatch(xObs, xBest, r.u(), f);
+        if (!fallbackAccepts(f, mismatch, rcfg)) {
+            return null;
+        }
+        return new ReferenceStateResult(loaded.withNodes(xBest.clone()), r.u().clone(), solves + 1, mismatch,
+                Arrays.copyOf(history, Math.min(solves, history.length)), newton + r.newtonIterations(),
+                linear + r.linearIterations(), (System.nanoTime() - t0) / 1_000_000,
+                "fixed-point (Anderson " + m + "), best iterate by the fallback rule" + (heldBack == 0 ? ""
+                        : "; " + heldBack + " node steps held back to keep elements from collapsing"), r, 0,
+                withinPercent(f, rcfg.toleranceMm()), true);
+    }
+
+    /**
+     * The fallback rule: every node within {@code maxMismatchMm} (no exception for held nodes) and at
+     * least {@link ReferenceStateConfig#FALLBACK_PERCENTILE} % of the nodes within {@code toleranceMm};
+     * never for the strict rule.
+     */
+    static boolean fallbackAccepts(double[] f, double maxMismatch, ReferenceStateConfig rcfg) {
+        if (rcfg.maxMismatchMm() <= rcfg.toleranceMm() || !(maxMismatch <= rcfg.maxMismatchMm())) {
+            return false;
+        }
+        return withinPercent(f, rcfg.toleranceMm()) >= ReferenceStateConfig.FALLBACK_PERCENTILE;
+    }
+
+    /** Share of nodes (percent) whose mismatch |f_n| is within {@code tolMm}. */
+    static double withinPercent(double[] f, double tolMm) {
+        int nodes = f.length / 3;
+        int within = 0;
+        for (int i = 0; i < f.length; i += 3) {
+            if (Math.sqrt(f[i] * f[i] + f[i + 1] * f[i + 1] + f[i + 2] * f[i + 2]) <= tolMm) {
+                within++;
+            }
+        }
+        return nodes == 0 ? 100 : 100.0 * within / nodes;
     }
 
     /**
@@ -419,7 +488,7 @@ public final class ReferenceStateSolver {
         }
         return new ReferenceStateResult(loaded.withNodes(x), fwd.u(), 0, mismatch, new double[] {mismatch},
                 back.newtonIterations() + fwd.newtonIterations(), back.linearIterations() + fwd.linearIterations(),
-                (System.nanoTime() - t0) / 1_000_000, "reverse gravity (biased)", fwd, 0);
+                (System.nanoTime() - t0) / 1_000_000, "reverse gravity (biased)", fwd, 0, Double.NaN, false);
     }
 
     /** min ‖f − Σ γ_j dF_j‖ by normal equations with a tiny Tikhonov term (m ≤ 20 columns). */
