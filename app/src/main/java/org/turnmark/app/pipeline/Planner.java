@@ -302,7 +302,7 @@ public final class Planner {
                 // registration does not remove.
                 PlanResult.CovarianceTerms terms = covMs == null ? null : new PlanResult.CovarianceTerms(
                         reg.rotateCovariance(markCov), li.centroid.onLabel() ? 0 : 1, c.priors().registrationSdMm(),
-                        covMs, SupineStage.HYBRID_MECHANICS_WEIGHT);
+                        covMs.clone(), SupineStage.HYBRID_MECHANICS_WEIGHT);
                 preds.add(prediction(PlanResult.HYBRID, PlanResult.FRAME_SUPINE, x0, xh, terms,
                         describe(li.side, xh, reg.hybridPoint(nip), surfaces, supNodesS), err(truthS, xh), ellSupine));
                 preds.add(prediction(PlanResult.REGISTRATION, PlanResult.FRAME_SUPINE, x0, xr, null,
