@@ -34,6 +34,12 @@ public record ReferenceStateConfig(double toleranceMm, int maxIterations, int an
      * used by the strict rule.
      */
     public static final double FALLBACK_PERCENTILE = 95;
+    /**
+     * Without a stall test ({@code stallWindow} 0), the fallback is also tried as soon as the best RMS
+     * mismatch has fallen by less than {@link #STALL_PROGRESS} in this many forward solves and the best
+     * iterate meets the fallback rule; the iteration goes on if it does not.
+     */
+    public static final int FALLBACK_STALL_WINDOW = 10;
     /** Relative fall of the best RMS mismatch that counts as progress for the stall test. */
     public static final double STALL_PROGRESS = 0.1;
 

@@ -161,6 +161,7 @@ public final class ReferenceStateSolver {
             ReferenceGeometry.minGaussDet(xObs, hex, detLoaded);
         }
         int heldBack = 0;
+        double fallbackTriedAt = Double.NaN;
         final boolean[] held = new boolean[n / 3];   // nodes held back in the current iterate
         for (int k = 0; k < rcfg.maxIterations(); k++) {
             prog.checkCancelled();
@@ -239,6 +240,18 @@ public final class ReferenceStateSolver {
                 throw new SolverDivergedException(String.format("reference-state iteration stalled: the RMS nodal "
                         + "mismatch (best %.4g mm, max %.4g mm) fell by less than %.0f %% in the last %d forward solves",
                         rmsBest, mismatch, 100 * ReferenceStateConfig.STALL_PROGRESS, w), Double.NaN, 1);
+            }
+            // Without a stall test, a stalled iteration whose best iterate already meets the fallback rule stops
+            // there instead of spending the remaining forward solves; otherwise it goes on (tried once per best).
+            if (w == 0 && rmsBest != fallbackTriedAt
+                    && fallbackDue(bestHistory, k, ReferenceStateConfig.FALLBACK_STALL_WINDOW)
+                    && fallbackAccepts(fBest, maxNorm(fBest), rcfg)) {
+                fallbackTriedAt = rmsBest;
+                ReferenceStateResult fb = fallback(solver, loaded, xObs, xBest, uBest, gravityMs2, rcfg, k + 1,
+                        history, newton, linear, t0, m, heldBack);
+                if (fb != null) {
+                    return fb;
+                }
             }
             boolean restart = rms > rmsPrev;
             if (rms > RUNAWAY * rmsBest) {
@@ -350,6 +363,24 @@ public final class ReferenceStateSolver {
             return false;
         }
         return withinPercent(f, rcfg.toleranceMm()) >= ReferenceStateConfig.FALLBACK_PERCENTILE;
+    }
+
+    /**
+     * True when the best RMS mismatch after forward solve {@code k} has fallen by less than
+     * {@link ReferenceStateConfig#STALL_PROGRESS} over the last {@code window} solves.
+     */
+    static boolean fallbackDue(double[] bestHistory, int k, int window) {
+        return window > 0 && k >= window
+                && bestHistory[k] > (1 - ReferenceStateConfig.STALL_PROGRESS) * bestHistory[k - window];
+    }
+
+    /** max_n |f_n| (mm). */
+    static double maxNorm(double[] f) {
+        double m = 0;
+        for (int i = 0; i < f.length; i += 3) {
+            m = Math.max(m, Math.sqrt(f[i] * f[i] + f[i + 1] * f[i + 1] + f[i + 2] * f[i + 2]));
+        }
+        return m;
     }
 
     /** Share of nodes (percent) whose mismatch |f_n| is within {@code tolMm}. */

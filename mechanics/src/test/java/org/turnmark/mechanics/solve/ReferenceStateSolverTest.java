@@ -185,6 +185,20 @@ class ReferenceStateSolverTest {
     }
 
     /**
+     * The early fallback is due once the best RMS mismatch has fallen by less than 10 % over the window:
+     * 1.0 → 0.95 mm in 3 solves is a stall, 1.0 → 0.85 mm is progress; never before the window is full.
+     */
+    @Test
+    void earlyFallbackIsDueOnlyAfterAWindowWithoutProgress() {
+        double[] best = {2.0, 1.0, 0.99, 0.97, 0.95, 0.85};
+        assertTrue(!ReferenceStateSolver.fallbackDue(best, 2, 3), "window not yet full");
+        assertTrue(ReferenceStateSolver.fallbackDue(best, 4, 3), "1.0 → 0.95 mm: less than 10 %");
+        assertTrue(!ReferenceStateSolver.fallbackDue(best, 5, 3), "0.99 → 0.85 mm: more than 10 %");
+        assertTrue(!ReferenceStateSolver.fallbackDue(best, 4, 0), "no window, no early fallback");
+        assertEquals(Math.hypot(3, 4), ReferenceStateSolver.maxNorm(new double[] {0, 1, 0, 3, 0, 4}), 0.0);
+    }
+
+    /**
      * The fallback path end to end: with one forward solve allowed, the first iterate (the prone nodes
      * themselves) misses the 99 % rule; with the tolerance set between the 96th and 97th percentile of its
      * own mismatch and a bound above its largest, the best iterate is solved again and accepted, flagged
