@@ -81,9 +81,9 @@ public final class ReportPdf {
             p.line("SHA-256 " + e.getKey() + ": " + e.getValue(), 7, false);
         }
         PlanResult.ModelSummary m = plan.model();
-        p.line(String.format(Locale.ROOT, "model: %d hexahedra, %d nodes, element %.1f mm, chest wall %s (%d nodes), "
+        p.wrapped(String.format(Locale.ROOT, "model: %d hexahedra, %d nodes, element %.1f mm, chest wall %s (%d nodes), "
                         + "%d nodes held where the field of view cuts the tissue", m.elements(), m.nodes(),
-                m.elementSizeMm(), m.chestWall(), m.chestWallNodes(), m.fieldOfViewNodes()), 8, false);
+                m.elementSizeMm(), m.chestWall(), m.chestWallNodes(), m.fieldOfViewNodes()), 8);
         PlanResult.UncertaintySummary u = plan.uncertainty();
         p.wrapped(String.format(Locale.ROOT, "uncertainty: %d of %d %s prior samples solved; added in closed form: %s",
                 u.completed(), u.samples(), u.design(), String.join("; ", u.addedAnalytically())), 8);

@@ -161,8 +161,7 @@ final class QualityFlags {
 
     /**
      * Hybrid vs registration-only: the same registration from the mechanics start and from a rigid start.
-     * Where they end far apart, at least one settled on other tissue; the hybrid covariance already grows
-     * with that spread ({@link PlanResult.CovarianceTerms}), and the flag says so when the
+     * Where they end far apart, at least one settled on other tissue; the flag warns when the
      * registration-only position lies outside the hybrid's 95 % ellipsoid.
      */
     static void registrationSpread(List<PlanResult.QualityFlag> flags, String lesionId, PlanResult.Prediction hybrid,
@@ -178,6 +177,6 @@ final class QualityFlags {
                         hybrid.covarianceMm2() == null ? "(no hybrid ellipsoid to compare)"
                                 : outside ? "the registration-only position lies outside the hybrid 95 % ellipsoid: "
                                 + "the registration found different tissue from its two starts, review the images"
-                                : "within the hybrid 95 % ellipsoid, which grows with this distance")));
+                                : "within the hybrid 95 % ellipsoid")));
     }
 }
