@@ -80,9 +80,9 @@ public record PlanFolder(Path dir, PlanResult plan, Path report, List<InfoRow> i
             }
         }
         if (plan.model() != null) {
-            inputs.add(new InfoRow("Mesh", String.format(Locale.ROOT, "%d elements of %.1f mm, %d nodes, chest wall %s",
-                    plan.model().elements(), plan.model().elementSizeMm(), plan.model().nodes(),
-                    plan.model().chestWall())));
+            inputs.add(new InfoRow("Mesh", String.format(Locale.ROOT, "%d elements of %.1f mm, %d nodes, chest wall %s, "
+                    + "%d nodes held at the image edge", plan.model().elements(), plan.model().elementSizeMm(),
+                    plan.model().nodes(), plan.model().chestWall(), plan.model().fieldOfViewNodes())));
         }
         if (plan.uncertainty() != null) {
             inputs.add(new InfoRow("Uncertainty", plan.uncertainty().completed() + " of " + plan.uncertainty().samples()

@@ -130,7 +130,8 @@ final class GuiTestData {
         PlanResult.LesionResult lesion = new PlanResult.LesionResult("L1", "left", PRONE_LESION.clone(),
                 PRONE_LESION.clone(), "intensity-weighted within 6 mm", prone, preds, List.of());
         PlanResult plan = new PlanResult(ResearchUse.FULL, Map.of("turnmark", "test"), "2026-01-01T00:00:00Z", c,
-                Map.of(), Map.of(), null, null, List.of(lesion),
+                Map.of(), Map.of(), new PlanResult.ModelSummary(6, 900, 1200, 150, 37, "sliding", Map.of(), Map.of()),
+                null, List.of(lesion),
                 List.of(new PlanResult.QualityFlag(PlanResult.QualityFlag.WARNING, "method agreement",
                                 "mechanics-only and hybrid differ by 3.4 mm, beyond the 95 % ellipsoids"),
                         new PlanResult.QualityFlag(PlanResult.QualityFlag.OK, "finite-element convergence",

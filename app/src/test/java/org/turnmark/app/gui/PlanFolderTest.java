@@ -60,6 +60,9 @@ class PlanFolderTest {
         assertEquals(Overlay.Posture.PRONE, p.images().get(2).posture(), "not on the supine grid");
         assertEquals("prone image (input)", p.images().get(3).name());
         assertTrue(p.inputs().stream().anyMatch(r -> r.key().equals("Case") && r.value().equals("gui-test")));
+        assertTrue(p.inputs().stream().anyMatch(r -> r.key().equals("Mesh") && r.value().equals(
+                "900 elements of 6.0 mm, 1200 nodes, chest wall sliding, 37 nodes held at the image edge")),
+                p.inputs().toString());
     }
 
     @Test

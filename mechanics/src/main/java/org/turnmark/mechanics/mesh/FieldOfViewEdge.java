@@ -35,9 +35,11 @@ public final class FieldOfViewEdge {
         double[] xyz = mesh.xyzMm();
         int[] n = {grid.nx(), grid.ny(), grid.nz()};
         boolean[] cut = new boolean[mesh.nodeCount()];
+        double[] p = new double[3];
         double[] v = new double[3];
         for (int i = 0; i < cut.length; i++) {
-            w2v.applyPoint(new double[] {xyz[3 * i], xyz[3 * i + 1], xyz[3 * i + 2]}, v);
+            System.arraycopy(xyz, 3 * i, p, 0, 3);
+            w2v.applyPoint(p, v);
             for (int a = 0; a < 3; a++) {
                 if (v[a] <= -0.5 + TOLERANCE_VOXELS || v[a] >= n[a] - 0.5 - TOLERANCE_VOXELS) {
                     cut[i] = true;
