@@ -209,6 +209,54 @@ public final class MechanicsModel {
         return FieldOfViewEdge.count(cut);
     }
 
+    /**
+     * Nodes on the field-of-view cut further than {@link #BREAST_CUT_MM} plus one element from the
+     * chest-wall contact count as a cut through the breast itself. A cut through the torso's skin and fat
+     * beside the breast lies within their thickness of the chest wall (12 mm on the phantoms); the breast
+     * stands 40 mm or more in front of it. The added element allows for both ends of the distance being
+     * lattice nodes. A stated heuristic, used only to word a warning.
+     */
+    public static final double BREAST_CUT_MM = 20;
+
+    /**
+     * Where the field of view cuts the breast itself rather than the torso around it.
+     *
+     * @param nodes         cut nodes further than {@link #BREAST_CUT_MM} + one element from the chest wall
+     * @param maxDistanceMm largest distance of a cut node from the chest-wall contact (mm); 0 with no cut
+     */
+    public record BreastCut(int nodes, double maxDistanceMm) {
+    }
+
+    /** How far from the chest wall the field of view cuts the tissue ({@link #BREAST_CUT_MM}). */
+    public BreastCut breastCut() {
+        double[] d = FieldOfViewEdge.distanceFromWallMm(proneMesh, cut, wall.nodes());
+        int n = 0;
+        double max = 0;
+        for (double v : d) {
+            if (!Double.isNaN(v)) {
+                max = Math.max(max, v);
+                n += v > BREAST_CUT_MM + elementMm ? 1 : 0;
+            }
+        }
+        return new BreastCut(n, max);
+    }
+
+    /**
+     * The warning for a cut through the breast itself, or null when the cut (if any) stays in the torso
+     * wall.
+     */
+    public String breastCutWarning() {
+        BreastCut c = breastCut();
+        if (c.nodes() == 0) {
+            return null;
+        }
+        return String.format(Locale.ROOT, "the image's field of view cuts the breast itself: %d mesh nodes on the "
+                + "image edge lie up to %.0f mm from the chest wall (more than %.0f mm + one %.3g mm element). The "
+                + "model holds them in place as if the body went on beyond the image, which the breast does not: "
+                + "predictions near that edge are less reliable than the ellipsoids say. Use an image whose field "
+                + "of view holds the whole breast", c.nodes(), c.maxDistanceMm(), BREAST_CUT_MM, elementMm);
+    }
+
     public ChestWallBoundary.ChestWall chestWall() {
         return wall;
     }

@@ -132,6 +132,10 @@ public final class Planner {
             throw new PlanInputException("cannot build the finite-element model from the labels: " + e.getMessage(), e);
         }
         warnings.addAll(model.labelMesh().warnings());
+        String cutWarning = model.breastCutWarning();
+        if (cutWarning != null) {
+            warnings.add(cutWarning);
+        }
         for (LesionInput li : lesions) {
             model.requireModelled("lesion " + li.mark.id(), li.centroid.rasMm());
         }

@@ -89,4 +89,53 @@ class MechanicsModelTest {
             }
         }
     }
+
+    /**
+     * A field of view that cuts the breast itself is told apart from one that cuts only the torso wall.
+     * The synthetic breast (radius 40 mm on the chest wall at y = 0) cropped at y ≤ 30 mm: the image's
+     * top face is at y = 31.25 mm, so every cut node is about 32 mm in front of the chest wall, beyond
+     * 20 mm + one 8 mm element. The torso-layer case above stays within 10 mm + one element and gives no
+     * warning.
+     */
+    @Test
+    void aCutThroughTheBreastItselfIsWarnedAbout() {
+        Volume v = SyntheticCase.labels();
+        Grid3 g = v.grid();
+        byte[] full = CaseInputs.labelBytes(v, "synthetic");
+        int ny = 25; // y = −30 … 30 mm
+        Grid3 cropped = Grid3.axisAligned(g.nx(), ny, g.nz(), SyntheticCase.SPACING_MM, SyntheticCase.SPACING_MM,
+                SyntheticCase.SPACING_MM, -100, -30, -55);
+        byte[] l = new byte[cropped.size()];
+        for (int k = 0; k < g.nz(); k++) {
+            for (int j = 0; j < ny; j++) {
+                for (int i = 0; i < g.nx(); i++) {
+                    l[cropped.index(i, j, k)] = full[g.index(i, j, k)];
+                }
+            }
+        }
+        MechanicsModel m = MechanicsModel.build(cropped, l, ELEMENT_MM);
+        MechanicsModel.BreastCut c = m.breastCut();
+        assertTrue(m.fieldOfViewNodes() > 0, "the crop cuts the breast");
+        assertEquals(m.fieldOfViewNodes(), c.nodes(), "every cut node lies in the breast, far from the chest wall");
+        // the element lattice starts on the image's low face, y = −31.25 mm, in 8 mm steps: the chest-wall
+        // nodes sit at y = 0.75 mm and the top cell reaches past the face to y = 32.75 mm, 32 mm above them;
+        // the nearest wall node may sit off the vertical by up to half an element diagonal in x and z
+        // (√2 · 4 mm), which adds at most √(32² + 5.66²) − 32 ≈ 0.50 mm
+        assertEquals(32.0, c.maxDistanceMm(), 0.6);
+        String w = m.breastCutWarning();
+        assertTrue(w != null && w.contains("cuts the breast itself") && w.contains(c.nodes() + " mesh nodes"), w);
+
+        for (int n = 0; n < full.length; n++) {
+            double[] p = g.worldOf(n % g.nx(), (n / g.nx()) % g.ny(), n / (g.nx() * g.ny()));
+            if (p[0] <= -40 && p[1] >= 0 && p[1] <= 10 && Math.abs(p[2]) <= 30 && full[n] == 0) {
+                full[n] = 1;
+            }
+        }
+        MechanicsModel torso = MechanicsModel.build(g, full, ELEMENT_MM);
+        assertTrue(torso.fieldOfViewNodes() > 0);
+        assertEquals(0, torso.breastCut().nodes());
+        assertTrue(torso.breastCut().maxDistanceMm() <= 10 + ELEMENT_MM, "a cut through the torso layer stays "
+                + "within its 10 mm thickness + one element of the chest wall: " + torso.breastCut());
+        assertEquals(null, torso.breastCutWarning());
+    }
 }

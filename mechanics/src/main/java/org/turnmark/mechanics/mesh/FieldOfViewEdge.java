@@ -50,6 +50,41 @@ public final class FieldOfViewEdge {
         return cut;
     }
 
+    /**
+     * For each node on the cut, its straight-line distance to the nearest of {@code wallNodes}, the
+     * chest-wall contact (mm); NaN for nodes not on the cut, and +∞ on the cut when there is no wall node.
+     * A cut through the torso's skin and fat lies within their thickness of the chest wall; a cut further
+     * out goes through the breast itself.
+     *
+     * @param mesh      the mesh
+     * @param cut       per node, on the cut ({@link #cutNodes})
+     * @param wallNodes node indices of the chest-wall contact
+     * @return per node, mm
+     */
+    public static double[] distanceFromWallMm(HexMesh mesh, boolean[] cut, int[] wallNodes) {
+        if (cut.length != mesh.nodeCount()) {
+            throw new IllegalArgumentException("cut flags: expected " + mesh.nodeCount() + " entries, got "
+                    + cut.length);
+        }
+        double[] xyz = mesh.xyzMm();
+        double[] d = new double[cut.length];
+        for (int i = 0; i < cut.length; i++) {
+            if (!cut[i]) {
+                d[i] = Double.NaN;
+                continue;
+            }
+            double best = Double.POSITIVE_INFINITY;
+            for (int w : wallNodes) {
+                double dx = xyz[3 * w] - xyz[3 * i];
+                double dy = xyz[3 * w + 1] - xyz[3 * i + 1];
+                double dz = xyz[3 * w + 2] - xyz[3 * i + 2];
+                best = Math.min(best, dx * dx + dy * dy + dz * dz);
+            }
+            d[i] = Math.sqrt(best);
+        }
+        return d;
+    }
+
     /** Number of true entries. */
     public static int count(boolean[] flags) {
         int c = 0;

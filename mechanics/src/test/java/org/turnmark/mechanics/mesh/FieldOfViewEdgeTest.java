@@ -86,4 +86,51 @@ class FieldOfViewEdgeTest {
         assertEquals(5 * 5, FieldOfViewEdge.count(cut2), "the 5 × 5 lattice points of the z = −½ face");
         assertTrue(cut2.length > 25);
     }
+
+    /**
+     * The distance of each cut node from the nearest chest-wall node is the brute-force minimum; nodes off
+     * the cut are NaN, no wall gives +∞, and flags of the wrong length are refused. The slab of the first
+     * test, with the nodes of its low-y face standing in for the chest wall.
+     */
+    @Test
+    void distanceFromTheWallIsTheNearestWallNodeForCutNodesOnly() {
+        Grid3 g = Grid3.axisAligned(6, 6, 4, 2, 2, 2, 10, -20, 5);
+        byte[] labels = new byte[6 * 6 * 4];
+        for (int k = 0; k < 4; k++) {
+            for (int j = 2; j < 4; j++) {
+                for (int i = 0; i < 6; i++) {
+                    labels[g.index(i, j, k)] = 1;
+                }
+            }
+        }
+        HexMesh m = mesh(g, labels, 4).mesh();
+        boolean[] cut = FieldOfViewEdge.cutNodes(m, g);
+        double[] xyz = m.xyzMm();
+        double yLow = Double.POSITIVE_INFINITY;
+        for (int n = 0; n < m.nodeCount(); n++) {
+            yLow = Math.min(yLow, xyz[3 * n + 1]);
+        }
+        java.util.List<Integer> wall = new java.util.ArrayList<>();
+        for (int n = 0; n < m.nodeCount(); n++) {
+            if (Math.abs(xyz[3 * n + 1] - yLow) < 1e-9) {
+                wall.add(n);
+            }
+        }
+        int[] w = wall.stream().mapToInt(Integer::intValue).toArray();
+        double[] d = FieldOfViewEdge.distanceFromWallMm(m, cut, w);
+        for (int n = 0; n < m.nodeCount(); n++) {
+            if (!cut[n]) {
+                assertTrue(Double.isNaN(d[n]), "node " + n + " is not on the cut");
+                continue;
+            }
+            // every node has a wall node straight below it (same x and z), so the distance is its height
+            assertEquals(xyz[3 * n + 1] - yLow, d[n], 1e-12, "node " + n);
+        }
+        double[] none = FieldOfViewEdge.distanceFromWallMm(m, cut, new int[0]);
+        for (int n = 0; n < m.nodeCount(); n++) {
+            assertTrue(cut[n] ? none[n] == Double.POSITIVE_INFINITY : Double.isNaN(none[n]));
+        }
+        org.junit.jupiter.api.Assertions.assertThrows(IllegalArgumentException.class,
+                () -> FieldOfViewEdge.distanceFromWallMm(m, new boolean[3], w));
+    }
 }
