@@ -107,13 +107,13 @@ public record CaseFile(
      * gravity direction deviates from the nominal posture by an isotropic angle with the given
      * standard deviation; the lesion mark and the registration have isotropic Gaussian errors; the
      * mechanics-only prediction carried into the supine image frame has an isotropic Gaussian error for
-     * the rigid alignment and the model error the other priors do not span; in the prone image frame, one
-     * for the model error alone.
+     * the rigid alignment and the model error the other priors do not span; in the prone image frame, the
+     * sampled covariance is scaled by a factor and gets an isotropic term of its own for the model error.
      */
     @JsonInclude(JsonInclude.Include.NON_NULL)
     @JsonPropertyOrder({"fat", "fibroglandular", "skin", "lesion", "nu", "chest_wall_sliding_probability",
         "gravity_direction_sd_deg", "lesion_marking_sd_mm", "registration_sd_mm", "mechanics_supine_sd_mm",
-        "mechanics_prone_sd_mm"})
+        "mechanics_prone_sd_mm", "mechanics_prone_scale"})
     public record Priors(
             @JsonProperty("fat") TissuePrior fat,
             @JsonProperty("fibroglandular") TissuePrior fibroglandular,
@@ -125,7 +125,8 @@ public record CaseFile(
             @JsonProperty("lesion_marking_sd_mm") Double lesionMarkingSdMm,
             @JsonProperty("registration_sd_mm") Double registrationSdMm,
             @JsonProperty("mechanics_supine_sd_mm") Double mechanicsSupineSdMm,
-            @JsonProperty("mechanics_prone_sd_mm") Double mechanicsProneSdMm) {
+            @JsonProperty("mechanics_prone_sd_mm") Double mechanicsProneSdMm,
+            @JsonProperty("mechanics_prone_scale") Double mechanicsProneScale) {
     }
 
     /** Log-normal prior on a tissue's shear modulus, and its density. */

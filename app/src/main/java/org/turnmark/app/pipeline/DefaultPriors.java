@@ -20,7 +20,8 @@ public final class DefaultPriors {
                 CaseFileReader.DEFAULT_SKIN, CaseFileReader.DEFAULT_LESION, CaseFileReader.DEFAULT_NU,
                 CaseFileReader.DEFAULT_SLIDING_PROBABILITY, CaseFileReader.DEFAULT_GRAVITY_SD_DEG,
                 CaseFileReader.DEFAULT_LESION_MARKING_SD_MM, CaseFileReader.DEFAULT_REGISTRATION_SD_MM,
-                CaseFileReader.DEFAULT_MECHANICS_SUPINE_SD_MM, CaseFileReader.DEFAULT_MECHANICS_PRONE_SD_MM);
+                CaseFileReader.DEFAULT_MECHANICS_SUPINE_SD_MM, CaseFileReader.DEFAULT_MECHANICS_PRONE_SD_MM,
+                CaseFileReader.DEFAULT_MECHANICS_PRONE_SCALE);
     }
 
     /** The sampling spec the planner builds from the default priors (same code path as a plan). */

@@ -282,9 +282,8 @@ public final class Planner {
             }
             double[] nipSup = mapOrNearest(mev, nip, model, ref, sup);
             Descriptors.Descriptor dSup = describe(li.side, xm, nipSup, surfaces, supNodes);
-            // Prone frame: Σ_m + s_p² I, the sampled spread plus the model error it does not span
-            double[] covProne = covM == null ? null : Covariance3.add(covM,
-                    Covariance3.isotropic(c.priors().mechanicsProneSdMm()));
+            // Prone frame: k Σ_m + s_p² I, the sampled spread scaled up for the model error it does not span
+            double[] covProne = covM == null ? null : proneCovariance(covM, c.priors());
             preds.add(prediction(PlanResult.MECHANICS, PlanResult.FRAME_PRONE, x0, xm, covProne, dSup, rank, null,
                     ellProne));
             if (reg != null) {
@@ -373,7 +372,8 @@ public final class Planner {
                                 c.priors().registrationSdMm(), SupineStage.HYBRID_MECHANICS_WEIGHT),
                         String.format(Locale.ROOT, "rigid alignment and model error (mechanics-only in the supine frame, "
                                 + "isotropic %.3g mm SD)", c.priors().mechanicsSupineSdMm()),
-                        String.format(Locale.ROOT, "model error (mechanics-only in the prone frame, isotropic %.3g mm SD)",
+                        String.format(Locale.ROOT, "model error (mechanics-only in the prone frame: the sampled "
+                                + "covariance x %.3g, plus isotropic %.3g mm SD)", c.priors().mechanicsProneScale(),
                                 c.priors().mechanicsProneSdMm())));
         Map<String, String> software = new LinkedHashMap<>();
         String v = Planner.class.getPackage().getImplementationVersion();
@@ -576,4 +576,18 @@ public final class Planner {
         }
         return sumAll[1] > 0 ? sumAll[0] / sumAll[1] : 0;
     }
+
+    /**
+     * The mechanics-only covariance in the prone image frame: k Σ_m + s_p² I, with Σ_m the sampled spread
+     * plus the propagated marking error, k = {@code mechanics_prone_scale} and s_p =
+     * {@code mechanics_prone_sd_mm} (docs/planner.md, Uncertainty).
+     */
+    static double[] proneCovariance(double[] covM, CaseFile.Priors p) {
+        double[] k = covM.clone();
+        for (int i = 0; i < 9; i++) {
+            k[i] *= p.mechanicsProneScale();
+        }
+        return Covariance3.add(k, Covariance3.isotropic(p.mechanicsProneSdMm()));
+    }
+
 }

@@ -94,7 +94,7 @@ public final class BenchCalibration {
                Boolean inside68, Boolean inside95, double[] semiAxes95Mm, int samplesOk, int samplesRequested,
                double planSeconds, double[] covarianceMm2, PlanResult.CovarianceTerms terms,
                double[] mechanicsSupineMm2, String refinement, Double mechanicsModelSdMm,
-               Double alignmentErrorMm) {
+               Double alignmentErrorMm, Double mechanicsModelScale) {
     }
 
     /** Unique entries of a symmetric 3×3 (row-major) in the order the CSV names them. */
@@ -347,7 +347,9 @@ public final class BenchCalibration {
                         p.covarianceMm2(), p.covarianceTerms(), p.covarianceTerms() == null ? null : mechanicsSupine,
                         l.refinement(), p.covarianceMm2() == null ? null : MECHANICS_SUPINE.equals(method)
                         ? c.priors().mechanicsSupineSdMm() : MECHANICS_PRONE.equals(method)
-                        ? c.priors().mechanicsProneSdMm() : null, MECHANICS_SUPINE.equals(method) ? alignErr : null));
+                        ? c.priors().mechanicsProneSdMm() : null, MECHANICS_SUPINE.equals(method) ? alignErr : null,
+                        p.covarianceMm2() == null ? null : MECHANICS_SUPINE.equals(method) ? Double.valueOf(1)
+                        : MECHANICS_PRONE.equals(method) ? c.priors().mechanicsProneScale() : null));
             }
         }
         return rows;
@@ -479,7 +481,7 @@ public final class BenchCalibration {
                 + "prone image frame), world RAS+ mm / mm2; cov_*: the prediction's covariance; hybrid rows: "
                 + "hyb_marking_* (marking term), hyb_mechanics_* (mechanics-only covariance), hyb_registration_sd_mm; "
                 + "cov = marking_weight * marking + sd^2 I + mechanics_weight * mechanics; mechanics-only rows: cov = sampled covariance (rotated into the supine frame for supine-frame "
-                + "rows) + mech_model_sd_mm^2 I\n");
+                + "rows; prone-frame rows: times mech_model_scale) + mech_model_sd_mm^2 I\n");
         b.append("seed,lesion,method,error_mm,error_x_mm,error_y_mm,error_z_mm,d2,inside_68,inside_95,"
                 + "semi_axis95_1_mm,semi_axis95_2_mm,semi_axis95_3_mm,samples_ok,samples_requested,plan_s");
         for (String prefix : new String[] {"cov_", "hyb_marking_", "hyb_mechanics_"}) {
@@ -488,7 +490,7 @@ public final class BenchCalibration {
             }
         }
         b.append(",hyb_registration_sd_mm,hyb_marking_weight,hyb_mechanics_weight,centroid_refined_on_label,"
-                + "mech_model_sd_mm,alignment_error_at_lesion_mm\n");
+                + "mech_model_sd_mm,alignment_error_at_lesion_mm,mech_model_scale\n");
         for (Row r : rows) {
             b.append(r.seed()).append(',').append(r.lesion()).append(',').append(r.method()).append(',')
                     .append(num(r.errorNormMm())).append(',').append(num(r.errorMm()[0])).append(',')
@@ -513,7 +515,8 @@ public final class BenchCalibration {
                     .append(t == null ? "" : num(t.mechanicsWeight())).append(',')
                     .append(r.refinement() != null && r.refinement().startsWith("centroid of label")).append(',')
                     .append(r.mechanicsModelSdMm() == null ? "" : num(r.mechanicsModelSdMm())).append(',')
-                    .append(r.alignmentErrorMm() == null ? "" : num(r.alignmentErrorMm())).append('\n');
+                    .append(r.alignmentErrorMm() == null ? "" : num(r.alignmentErrorMm())).append(',')
+                    .append(r.mechanicsModelScale() == null ? "" : num(r.mechanicsModelScale())).append('\n');
         }
         Path abs = csv.toAbsolutePath();
         Path dir = abs.getParent();

@@ -41,7 +41,7 @@ import org.turnmark.geom.ResearchUse;
  *
  * <p>Mechanics-only, each frame on its own: e_i ~ N(0, Σ_m,i + s² I) with Σ_m,i the sampled covariance
  * (rotated into the supine frame for the supine-frame rows; the CSV's cov_* less the s² the plan added,
- * column mech_model_sd_mm, earlier mech_supine_sd_mm; CSVs written before such a column existed hold
+ * column mech_model_sd_mm, earlier mech_supine_sd_mm, and divided by the factor in mech_model_scale where that column exists; CSVs written before such a column existed hold
  * Σ_m,i alone) and s the isotropic term of that frame: s_m (supine frame: the rigid alignment's error and
  * the model error) or s_p (prone frame: the model error). The same profile fit with Σ_m,i in the place of
  * K (weight 1) and no shape term.
@@ -342,6 +342,11 @@ public final class BenchCalibrationFit {
                 m[0] -= sd * sd;
                 m[4] -= sd * sd;
                 m[8] -= sd * sd;
+                Integer kCol = col.get("mech_model_scale");
+                double k = kCol == null || kCol >= f.length || f[kCol].isEmpty() ? 1 : Double.parseDouble(f[kCol]);
+                for (int q = 0; q < 9; q++) {
+                    m[q] /= k;
+                }
                 out.add(new Case(Long.parseLong(f[col.get("seed")]), e, m, 1, new double[9]));
             } catch (RuntimeException ex) {
                 throw new IOException(csv + " line " + t.lines().get(r) + ": " + ex.getMessage(), ex);
@@ -678,6 +683,16 @@ public final class BenchCalibrationFit {
             Loo l = leaveOneOut(cs, true);
             System.out.println(looRow(frame + ", Σ_m + s² I", n, cs.size(), String.format(Locale.ROOT,
                     "s = %.3f mm (SE %.3f)", sd, sdStandardError(cs, sd, 0)), 2 * negLogLik(cs, sd, 0) + 2, l));
+            // the sampled covariance scaled up as well: (1 + w) Σ_m + s² I (Σ_m as the shape, weight w)
+            List<Case> scaled = new ArrayList<>();
+            for (Case c : cs) {
+                scaled.add(new Case(c.seed(), c.errorMm(), c.markingMm2(), 1, c.markingMm2()));
+            }
+            Fit f = fit(scaled);
+            Loo ls = leaveOneOut(scaled, false);
+            System.out.println(looRow(frame + ", (1 + w) Σ_m + s² I", n, cs.size(), String.format(Locale.ROOT,
+                    "s = %.3f mm (SE %.3f), w = %.4f (SE %.4f)", f.registrationSdMm(), f.sdSeMm(), f.weight(),
+                    f.weightSe()), 2 * f.negLogLik() + 4, ls));
         }
     }
 

@@ -245,6 +245,28 @@ class BenchCalibrationFitTest {
         assertEquals(6, supine.get(0).markingMm2()[0], "2 mm recorded: 4 mm² off the diagonal");
     }
 
+    /** Prone-frame rows written with a factor on the sampled covariance are read back divided by it. */
+    @Test
+    void readsTheProneFrameRowsDividedByTheirScale(@TempDir Path dir) throws Exception {
+        StringBuilder b = new StringBuilder("# caution\nseed,lesion,method,error_x_mm,error_y_mm,error_z_mm");
+        for (String n : BenchCalibration.SYMMETRIC_NAMES) {
+            b.append(",cov_").append(n).append("_mm2");
+        }
+        b.append(",mech_model_sd_mm,mech_model_scale\n");
+        // written as k Σ_m + s² I with k = 2, s = 1 mm: Σ_m = diag(4.5, 9.5, 14.5), off-diagonals halved
+        b.append("5,L1,mechanics-only (prone frame),4,5,6,10,20,30,1,2,3,1,2\n");
+        b.append("5,L1,mechanics-only (supine frame),4,5,6,10,20,30,1,2,3,1,1\n");
+        Path csv = dir.resolve("k.csv");
+        Files.writeString(csv, b);
+        double[] m = BenchCalibrationFit.readMechanics(csv, BenchCalibration.MECHANICS_PRONE).get(0).markingMm2();
+        assertEquals(4.5, m[0]);
+        assertEquals(9.5, m[4]);
+        assertEquals(14.5, m[8]);
+        assertEquals(0.5, m[1]);
+        assertEquals(9, BenchCalibrationFit.readMechanics(csv, BenchCalibration.MECHANICS_SUPINE).get(0).markingMm2()[0],
+                "a factor of 1 leaves the row as it was");
+    }
+
     /** A minimal calibration CSV: errors, the six covariance entries and the given isotropic-term column. */
     private static Path mechanicsCsv(Path csv, String sdColumn, String... rows) throws java.io.IOException {
         StringBuilder b = new StringBuilder("# caution\nseed,lesion,method,error_x_mm,error_y_mm,error_z_mm");

@@ -125,6 +125,8 @@ class CaseFileReaderTest {
                 "}], \"priors\": {\"mechanics_supine_sd_mm\": -0.5}}")).key());
         assertEquals("priors.mechanics_prone_sd_mm", fails(MINIMAL.replace("}]}",
                 "}], \"priors\": {\"mechanics_prone_sd_mm\": 51}}")).key());
+        assertEquals("priors.mechanics_prone_scale", fails(MINIMAL.replace("}]}",
+                "}], \"priors\": {\"mechanics_prone_scale\": 0.5}}")).key());
     }
 
     @Test
@@ -134,6 +136,9 @@ class CaseFileReaderTest {
         assertEquals(CaseFileReader.DEFAULT_MECHANICS_PRONE_SD_MM, c.priors().mechanicsProneSdMm());
         c = read(MINIMAL.replace("}]}", "}], \"priors\": {\"mechanics_prone_sd_mm\": 3.5}}"));
         assertEquals(3.5, c.priors().mechanicsProneSdMm());
+        assertEquals(CaseFileReader.DEFAULT_MECHANICS_PRONE_SCALE, c.priors().mechanicsProneScale());
+        c = read(MINIMAL.replace("}]}", "}], \"priors\": {\"mechanics_prone_scale\": 2.5}}"));
+        assertEquals(2.5, c.priors().mechanicsProneScale());
     }
 
     @Test

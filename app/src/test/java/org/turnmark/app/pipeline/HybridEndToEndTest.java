@@ -61,15 +61,17 @@ class HybridEndToEndTest {
     void mechanicsOnlyCovarianceGainsItsOwnModelTermInEachFrame() {
         double sm = c.priors().mechanicsSupineSdMm();
         double sp = c.priors().mechanicsProneSdMm();
+        double k = c.priors().mechanicsProneScale();
         assertEquals(CaseFileReader.DEFAULT_MECHANICS_SUPINE_SD_MM, sm, 0.0, "the default of docs/case-format.md");
-        assertTrue(sp > 0, "the prone frame has its own fitted term");
         assertEquals(CaseFileReader.DEFAULT_MECHANICS_PRONE_SD_MM, sp, 0.0);
+        assertTrue(k > 1, "the prone frame scales its sampled covariance up");
+        assertEquals(CaseFileReader.DEFAULT_MECHANICS_PRONE_SCALE, k, 0.0);
         double[] prone = eigen(find(r, PlanResult.MECHANICS, PlanResult.FRAME_PRONE).covarianceMm2());
         double[] supine = eigen(find(r, PlanResult.MECHANICS, PlanResult.FRAME_SUPINE).covarianceMm2());
-        // Σ_prone = Σ_m + s_p² I and Σ_supine = R Σ_m Rᵀ + s_m² I: same eigenvectors up to R, every
-        // eigenvalue shifted by s_m² − s_p²
+        // Σ_prone = k Σ_m + s_p² I and Σ_supine = R Σ_m Rᵀ + s_m² I: same eigenvectors up to R, the
+        // eigenvalues λ_prone = k λ + s_p² and λ_supine = λ + s_m²
         for (int i = 0; i < 3; i++) {
-            assertEquals(prone[i] - sp * sp + sm * sm, supine[i], EIGEN_REL_TOL * supine[i], "eigenvalue " + i);
+            assertEquals((prone[i] - sp * sp) / k + sm * sm, supine[i], EIGEN_REL_TOL * supine[i], "eigenvalue " + i);
         }
     }
 

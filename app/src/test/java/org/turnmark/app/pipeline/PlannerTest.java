@@ -39,6 +39,25 @@ class PlannerTest {
                 r.warnings().toString());
     }
 
+    /**
+     * The prone-frame covariance is k Σ_m + s_p² I entry by entry: every entry scaled, s_p² on the diagonal
+     * only (docs/planner.md, Uncertainty).
+     */
+    @Test
+    void proneFrameCovarianceScalesTheSampledOneAndAddsTheIsotropicTerm() {
+        CaseFile.Priors d = DefaultPriors.priors();
+        CaseFile.Priors p = new CaseFile.Priors(d.fat(), d.fibroglandular(), d.skin(), d.lesion(), d.nu(),
+                d.chestWallSlidingProbability(), d.gravityDirectionSdDeg(), d.lesionMarkingSdMm(), d.registrationSdMm(),
+                d.mechanicsSupineSdMm(), 1.5, 2.0);
+        double[] m = {4, 1, -2, 1, 9, 0.5, -2, 0.5, 16};
+        double[] c = Planner.proneCovariance(m, p);
+        double[] expected = {2 * 4 + 2.25, 2, -4, 2, 2 * 9 + 2.25, 1, -4, 1, 2 * 16 + 2.25};
+        for (int i = 0; i < 9; i++) {
+            assertEquals(expected[i], c[i], 1e-12, "entry " + i);
+        }
+        assertEquals(4, m[0], "the sampled covariance is left as it was");
+    }
+
     @Test
     void lesionOutsideTheBreastIsRejected() throws IOException {
         Path c = SyntheticCase.write(dir, 0, true);
