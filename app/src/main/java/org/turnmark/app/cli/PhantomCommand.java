@@ -74,6 +74,11 @@ final class PhantomCommand implements Callable<Integer> {
         "from the planner's default priors, for calibrating its ellipsoids; default ${DEFAULT-VALUE})."})
     private String truth;
 
+    @Option(names = "--field-of-view", defaultValue = "breast", description = {
+        "What the images cover: breast (the breasts with a margin of torso) or chest (both sides and the anterior",
+        "half of the torso, with sternum, ribs and lungs; default ${DEFAULT-VALUE})."})
+    private String fieldOfView;
+
     @Option(names = "--case-id", description = "Case name for case.json and the README (default: the output folder name).")
     private String caseId;
 
@@ -94,7 +99,8 @@ final class PhantomCommand implements Callable<Integer> {
         PhantomOptions o;
         try {
             o = new PhantomOptions(seed, spacingMm, breasts, side, breastMl, projection, ptosis, lesionMm, lesions,
-                    PhantomOptions.Contrast.parse(contrast), snr, elementMm, PhantomOptions.Truth.parse(truth));
+                    PhantomOptions.Contrast.parse(contrast), snr, elementMm, PhantomOptions.Truth.parse(truth),
+                    PhantomOptions.FieldOfView.parse(fieldOfView));
         } catch (IllegalArgumentException e) {
             throw new UserInputException(e.getMessage(), e);
         }
@@ -124,11 +130,13 @@ final class PhantomCommand implements Callable<Integer> {
     private String commandLine(PhantomOptions o, String id) {
         return String.format(Locale.ROOT, "turnmark phantom --seed %d --spacing-mm %s --breasts %d --side %s "
                         + "--breast-ml %s --projection %s --ptosis %s --lesion-mm %s --lesions %d --contrast %s "
-                        + "--snr %s --element-mm %s%s --case-id %s --out %s",
+                        + "--snr %s --element-mm %s%s%s --case-id %s --out %s",
                 o.seed(), num(o.spacingMm()), o.breasts(), o.side(), num(o.breastVolumeMl()), num(o.projection()),
                 num(o.ptosis()), num(o.lesionDiameterMm()), o.lesionCount(),
                 o.contrast().name().toLowerCase(Locale.ROOT), num(o.snr()), num(o.elementMm()),
-                o.truth() == PhantomOptions.Truth.DEFAULT ? "" : " --truth " + o.truth().key(), id, id);
+                o.truth() == PhantomOptions.Truth.DEFAULT ? "" : " --truth " + o.truth().key(),
+                o.fieldOfView() == PhantomOptions.FieldOfView.BREAST ? "" : " --field-of-view " + o.fieldOfView().key(),
+                id, id);
     }
 
     private static String num(double v) {

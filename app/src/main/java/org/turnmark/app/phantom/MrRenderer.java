@@ -58,6 +58,12 @@ public final class MrRenderer {
                     return 420;
                 case PhantomAnatomy.RIB_CAGE:
                     return 120;
+                case PhantomAnatomy.BONE:
+                    return 550;
+                case PhantomAnatomy.LUNG:
+                    return 40;
+                case PhantomAnatomy.HEART:
+                    return 300;
                 default:
                     return 0;
             }
@@ -75,6 +81,12 @@ public final class MrRenderer {
                 return 950;
             case PhantomAnatomy.RIB_CAGE:
                 return 60;
+            case PhantomAnatomy.BONE:
+                return 90;
+            case PhantomAnatomy.LUNG:
+                return 20;
+            case PhantomAnatomy.HEART:
+                return 180;
             default:
                 return 0;
         }

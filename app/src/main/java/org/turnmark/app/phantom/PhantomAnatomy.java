@@ -53,6 +53,30 @@ public final class PhantomAnatomy {
     public static final int LESION = 5;
     /** Rib cage behind the muscle: label 4 like the muscle, darker in the images. */
     public static final int RIB_CAGE = 6;
+    /** Ribs and sternum (chest field of view only): label 4, marrow-bright in T1. */
+    public static final int BONE = 7;
+    /** Lung behind the rib layer (chest field of view only): label 4, nearly black. */
+    public static final int LUNG = 8;
+
+    /** Depth under the torso skin where the rib layer starts (mm): under the fat and the muscle. */
+    public static final double RIB_LAYER_MM = SUBCUTANEOUS_FAT_MM + MUSCLE_MM;
+    /** Thickness of the rib layer (ribs, sternum and the muscle between ribs), mm. */
+    public static final double RIB_THICKNESS_MM = 10;
+    /** Half-height of a rib in z (mm): 12 mm ribs. */
+    public static final double RIB_HALF_HEIGHT_MM = 6;
+    /** Rise of a rib's centre line per mm away from the midline (the ribs climb laterally). */
+    public static final double RIB_RISE = 0.15;
+    /** Pitch of successive ribs along z at the midline: uniform in this range per rib (mm), so no two
+     *  intercostal spaces need be alike and the pattern has no period. */
+    public static final double RIB_PITCH_MIN_MM = 20;
+    public static final double RIB_PITCH_MAX_MM = 32;
+    /** Heart (chest field of view only): label 4, an ellipsoid behind the sternum, left of the midline. */
+    public static final int HEART = 9;
+    /** Heart centre in x and y (mm) and its semi-axes (mm); its z centre is 10 mm below the image's middle. */
+    public static final double[] HEART_CENTRE_XY_MM = {-30, -80};
+    public static final double[] HEART_SEMI_AXES_MM = {55, 38, 55};
+    /** Half-width of the sternum (mm). */
+    public static final double STERNUM_HALF_WIDTH_MM = 15;
 
     private static final double MOUND_BLEND_MM = 10;
     private static final double NIPPLE_BLEND_MM = 2;
@@ -73,6 +97,10 @@ public final class PhantomAnatomy {
     private final double fineOy;
     private final double fineOz;
     private final double fineSpacing;
+    /** Rib centre lines at the midline (z, mm, ascending); empty with the breast field of view. */
+    private final double[] ribZ;
+    /** Heart centre z (mm); NaN with the breast field of view. */
+    private final double heartZ;
 
     private PhantomAnatomy(PhantomOptions options, BreastMound[] mounds, DuctalTree[] trees, double[] lesions,
                            double[] nipples, Grid3 grid, Grid3 fineGrid, float[] gland) {
@@ -89,6 +117,31 @@ public final class PhantomAnatomy {
         this.fineOy = o[1];
         this.fineOz = o[2];
         this.fineSpacing = fineGrid.spacingMm(0);
+        boolean chest = options.fieldOfView() == PhantomOptions.FieldOfView.CHEST;
+        this.ribZ = chest ? ribs(options.seed(), grid) : new double[0];
+        this.heartZ = chest ? 0.5 * (grid.worldOf(0, 0, 0)[2] + grid.worldOf(0, 0, grid.nz() - 1)[2]) - 10 : Double.NaN;
+    }
+
+    /**
+     * Rib centre lines at the midline for the chest field of view: from 80 mm below the image to 80 mm
+     * above it (room for the supine placement), at a pitch drawn per rib. A stream of its own, so the
+     * breasts, ducts and lesions are those of the same seed with the breast field of view.
+     */
+    private static double[] ribs(long seed, Grid3 grid) {
+        SplittableRandom r = new SplittableRandom(seed ^ 0x52494253L);
+        double lo = grid.worldOf(0, 0, 0)[2] - 80;
+        double hi = grid.worldOf(0, 0, grid.nz() - 1)[2] + 80;
+        java.util.List<Double> z = new java.util.ArrayList<>();
+        for (double at = lo + r.nextDouble(0, RIB_PITCH_MAX_MM); at < hi;
+                at += r.nextDouble(RIB_PITCH_MIN_MM, RIB_PITCH_MAX_MM)) {
+            z.add(at);
+        }
+        return z.stream().mapToDouble(Double::doubleValue).toArray();
+    }
+
+    /** Rib centre lines at the midline (z, mm, ascending, new array); empty with the breast field of view. */
+    public double[] ribCentresMm() {
+        return ribZ.clone();
     }
 
     /**
@@ -107,7 +160,7 @@ public final class PhantomAnatomy {
             mounds[b] = makeMound(o, side, rng);
         }
         // Provisional anatomy (no gland yet) to answer envelope queries while growing the trees.
-        Grid3 grid = imageGrid(mounds, o.spacingMm());
+        Grid3 grid = imageGrid(mounds, o.spacingMm(), o.fieldOfView());
         double fs = o.spacingMm() / 2;
         Grid3 fine = fineGrid(grid, fs);
         PhantomAnatomy shape = new PhantomAnatomy(o, mounds, new DuctalTree[0], new double[0], new double[0],
@@ -172,7 +225,7 @@ public final class PhantomAnatomy {
     }
 
     /** Image grid: the mounds' bounding box plus margins for the posture changes, on the spacing lattice. */
-    private static Grid3 imageGrid(BreastMound[] mounds, double s) {
+    private static Grid3 imageGrid(BreastMound[] mounds, double s, PhantomOptions.FieldOfView fov) {
         double[] lo = {Double.MAX_VALUE, Double.MAX_VALUE, Double.MAX_VALUE};
         double[] hi = {-Double.MAX_VALUE, -Double.MAX_VALUE, -Double.MAX_VALUE};
         double lateralLo = 0;
@@ -207,6 +260,12 @@ public final class PhantomAnatomy {
         lo[1] -= 16;
         lo[2] -= 25;
         hi[2] += 20;
+        if (fov == PhantomOptions.FieldOfView.CHEST) {
+            // both sides of the chest past the torso's flanks, and back to its centre line
+            lo[0] = Math.min(lo[0], -TORSO_AX_MM - 20);
+            hi[0] = Math.max(hi[0], TORSO_AX_MM + 20);
+            lo[1] = Math.min(lo[1], TORSO_CY_MM - 5);
+        }
         int[] n = new int[3];
         double[] origin = new double[3];
         for (int d = 0; d < 3; d++) {
@@ -495,14 +554,19 @@ public final class PhantomAnatomy {
 
     /**
      * Tissue class at a reference point: {@link #AIR}, {@link #FAT}, {@link #GLAND}, {@link #SKIN},
-     * {@link #MUSCLE}, {@link #LESION} or {@link #RIB_CAGE}.
+     * {@link #MUSCLE}, {@link #LESION} or {@link #RIB_CAGE}; with the chest field of view the chest wall
+     * under the muscle is {@link #BONE} (ribs, sternum), {@link #MUSCLE} (between ribs), {@link #LUNG} or
+     * {@link #HEART}.
      *
      * @param skinMm thickness of the skin layer used (mm)
      */
     public int tissueClass(double x, double y, double z, double skinMm) {
         double dT = torsoDepth(x, y);
         if (dT >= SUBCUTANEOUS_FAT_MM) {
-            return dT < SUBCUTANEOUS_FAT_MM + MUSCLE_MM ? MUSCLE : RIB_CAGE;
+            if (dT < RIB_LAYER_MM) {
+                return MUSCLE;
+            }
+            return ribZ.length == 0 ? RIB_CAGE : chestClass(x, y, z, dT);
         }
         double d = bodyDepth(x, y, z);
         if (d < 0) {
@@ -520,9 +584,42 @@ public final class PhantomAnatomy {
         return glandDensity(x, y, z) >= GLAND_THRESHOLD ? GLAND : FAT;
     }
 
+    /** Chest wall under the muscle with the chest field of view: bone, muscle between ribs, or lung. */
+    private boolean inHeart(double x, double y, double z) {
+        double a = (x - HEART_CENTRE_XY_MM[0]) / HEART_SEMI_AXES_MM[0];
+        double b = (y - HEART_CENTRE_XY_MM[1]) / HEART_SEMI_AXES_MM[1];
+        double c = (z - heartZ) / HEART_SEMI_AXES_MM[2];
+        return a * a + b * b + c * c <= 1;
+    }
+
+    private int chestClass(double x, double y, double z, double dT) {
+        if (dT >= RIB_LAYER_MM + RIB_THICKNESS_MM) {
+            return inHeart(x, y, z) ? HEART : LUNG;
+        }
+        double ax = Math.abs(x);
+        if (ax < STERNUM_HALF_WIDTH_MM) {
+            return BONE;
+        }
+        double zc = z - RIB_RISE * ax;
+        int i = java.util.Arrays.binarySearch(ribZ, zc);
+        int at = i >= 0 ? i : -i - 1;
+        for (int k = Math.max(0, at - 1); k <= Math.min(ribZ.length - 1, at); k++) {
+            if (Math.abs(zc - ribZ[k]) < RIB_HALF_HEIGHT_MM) {
+                return BONE;
+            }
+        }
+        return MUSCLE;
+    }
+
+    /** Whether a tissue class is part of the chest wall (label 4). */
+    public static boolean isChestWall(int tissueClass) {
+        return tissueClass == MUSCLE || tissueClass == RIB_CAGE || tissueClass == BONE || tissueClass == LUNG
+                || tissueClass == HEART;
+    }
+
     /** Label (0–5, mechanics conventions) of a tissue class. */
     public static byte labelOf(int tissueClass) {
-        return (byte) (tissueClass == RIB_CAGE ? MUSCLE : tissueClass);
+        return (byte) (isChestWall(tissueClass) ? MUSCLE : tissueClass);
     }
 
     /** Skin thickness used when rasterising at {@code spacingMm}: at least one voxel. */

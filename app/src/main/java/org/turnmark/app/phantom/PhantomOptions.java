@@ -20,10 +20,46 @@ import java.util.Locale;
  * @param truth             how the truth conditions are chosen ({@link Truth#DEFAULT}: deliberately
  *                          different from the planner's defaults; {@link Truth#PRIORS}: one draw from
  *                          the planner's default priors)
+ * @param fieldOfView       what the images cover ({@link FieldOfView#BREAST}: the breasts with a margin of
+ *                          torso; {@link FieldOfView#CHEST}: the whole anterior half of the torso, with its
+ *                          ribs and sternum)
  */
 public record PhantomOptions(long seed, double spacingMm, int breasts, String side, double breastVolumeMl,
                              double projection, double ptosis, double lesionDiameterMm, int lesionCount,
-                             Contrast contrast, double snr, double elementMm, Truth truth) {
+                             Contrast contrast, double snr, double elementMm, Truth truth,
+                             FieldOfView fieldOfView) {
+
+    /** What the images cover. */
+    public enum FieldOfView {
+        /**
+         * The breasts with a margin of torso (a few centimetres of chest wall behind them, 15–30 mm each
+         * side); the torso is featureless there. The bundled sample cases use this.
+         */
+        BREAST,
+        /**
+         * Both sides of the chest and the anterior half of the torso (down to the torso's centre line),
+         * with a sternum, ribs at an irregular pitch and lungs drawn inside the chest wall, so that the
+         * torso alone fixes its own placement in the image.
+         */
+        CHEST;
+
+        /** Parses "breast" or "chest" (any case). */
+        public static FieldOfView parse(String s) {
+            String v = s.trim().toLowerCase(Locale.ROOT);
+            if (v.equals("breast")) {
+                return BREAST;
+            }
+            if (v.equals("chest")) {
+                return CHEST;
+            }
+            throw new IllegalArgumentException("field of view must be breast or chest, got '" + s + "'");
+        }
+
+        /** The lower-case name used on the command line and in the truth files. */
+        public String key() {
+            return name().toLowerCase(Locale.ROOT);
+        }
+    }
 
     /** How the truth conditions (materials, chest wall, supine gravity) of a case are chosen. */
     public enum Truth {
@@ -101,6 +137,17 @@ public record PhantomOptions(long seed, double spacingMm, int breasts, String si
         if (truth == null) {
             throw new IllegalArgumentException("truth must be given (default or priors)");
         }
+        if (fieldOfView == null) {
+            throw new IllegalArgumentException("field of view must be given (breast or chest)");
+        }
+    }
+
+    /** Options with the breast field of view ({@link FieldOfView#BREAST}). */
+    public PhantomOptions(long seed, double spacingMm, int breasts, String side, double breastVolumeMl,
+                          double projection, double ptosis, double lesionDiameterMm, int lesionCount,
+                          Contrast contrast, double snr, double elementMm, Truth truth) {
+        this(seed, spacingMm, breasts, side, breastVolumeMl, projection, ptosis, lesionDiameterMm, lesionCount,
+                contrast, snr, elementMm, truth, FieldOfView.BREAST);
     }
 
     /** Options with the default truth conditions ({@link Truth#DEFAULT}). */
@@ -114,7 +161,13 @@ public record PhantomOptions(long seed, double spacingMm, int breasts, String si
     /** These options with another way of choosing the truth conditions. */
     public PhantomOptions withTruth(Truth t) {
         return new PhantomOptions(seed, spacingMm, breasts, side, breastVolumeMl, projection, ptosis,
-                lesionDiameterMm, lesionCount, contrast, snr, elementMm, t);
+                lesionDiameterMm, lesionCount, contrast, snr, elementMm, t, fieldOfView);
+    }
+
+    /** These options with another field of view. */
+    public PhantomOptions withFieldOfView(FieldOfView f) {
+        return new PhantomOptions(seed, spacingMm, breasts, side, breastVolumeMl, projection, ptosis,
+                lesionDiameterMm, lesionCount, contrast, snr, elementMm, truth, f);
     }
 
     /** Defaults: 2 mm voxels, one right breast of 350 ml, one 12 mm lesion, T1 contrast, SNR 25, 5 mm elements. */

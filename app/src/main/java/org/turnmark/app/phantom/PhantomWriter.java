@@ -190,6 +190,9 @@ public final class PhantomWriter {
         if (o.truth() != PhantomOptions.Truth.DEFAULT) {
             opts.put("truth", o.truth().key());
         }
+        if (o.fieldOfView() != PhantomOptions.FieldOfView.BREAST) {
+            opts.put("field_of_view", o.fieldOfView().key());
+        }
         m.put("options", opts);
         m.put("snr_definition", "noise sigma = mean noise-free signal over breast-tissue voxels (labels 1, 2, 3, 5)"
                 + " / SNR; Rician magnitude noise");

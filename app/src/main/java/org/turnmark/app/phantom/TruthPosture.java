@@ -115,7 +115,7 @@ public final class TruthPosture implements PostureMap {
             return true;
         }
         int c = anatomy.tissueClass(p[0], p[1], p[2], skin);
-        if (c == PhantomAnatomy.MUSCLE || c == PhantomAnatomy.RIB_CAGE) {
+        if (PhantomAnatomy.isChestWall(c)) {
             out[0] = p[0];
             out[1] = p[1];
             out[2] = p[2];

@@ -83,7 +83,7 @@ public final class BenchCalibration {
     /** Command-line settings. */
     record Settings(long from, long to, double spacingMm, double truthElementMm, int lesions, int samples,
                     Double planElementMm, Integer threads, Path work, Path csv, boolean writeOutputs,
-                    PhantomOptions.Truth truth) {
+                    PhantomOptions.Truth truth, PhantomOptions.FieldOfView fieldOfView) {
     }
 
     /**
@@ -139,8 +139,9 @@ public final class BenchCalibration {
         List<String> failures = new ArrayList<>();
         List<double[]> caseTimes = new ArrayList<>();
         for (long seed = s.from(); seed <= s.to(); seed++) {
-            Path caseDir = work.resolve(String.format(Locale.ROOT, "phantom-seed%d-sp%s-el%s-les%d-truth-%s", seed,
-                    fmt(s.spacingMm()), fmt(s.truthElementMm()), s.lesions(), s.truth().key()));
+            Path caseDir = work.resolve(String.format(Locale.ROOT, "phantom-seed%d-sp%s-el%s-les%d-truth-%s%s", seed,
+                    fmt(s.spacingMm()), fmt(s.truthElementMm()), s.lesions(), s.truth().key(),
+                    s.fieldOfView() == PhantomOptions.FieldOfView.BREAST ? "" : "-fov-" + s.fieldOfView().key()));
             Path planDir = work.resolve(caseDir.getFileName() + "-plan");
             try {
                 double tPhantom = phantom(s, seed, caseDir);
@@ -192,13 +193,13 @@ public final class BenchCalibration {
         PhantomOptions d = PhantomOptions.defaults(seed);
         PhantomOptions o = new PhantomOptions(seed, s.spacingMm(), d.breasts(), d.side(), d.breastVolumeMl(),
                 d.projection(), d.ptosis(), d.lesionDiameterMm(), s.lesions(), d.contrast(), d.snr(),
-                s.truthElementMm(), s.truth());
+                s.truthElementMm(), s.truth(), s.fieldOfView());
         long t0 = System.nanoTime();
         PhantomCase c = PhantomGenerator.generate(o, Progress.NONE);
         String id = dir.getFileName().toString();
         String command = String.format(Locale.ROOT, "turnmark phantom --seed %d --spacing-mm %s --element-mm %s "
-                + "--lesions %d --truth %s --out %s", seed, fmt(s.spacingMm()), fmt(s.truthElementMm()), s.lesions(),
-                s.truth().key(), id);
+                + "--lesions %d --truth %s --field-of-view %s --out %s", seed, fmt(s.spacingMm()),
+                fmt(s.truthElementMm()), s.lesions(), s.truth().key(), s.fieldOfView().key(), id);
         PhantomWriter.write(c, dir, id, command, true);
         return (System.nanoTime() - t0) * 1e-9;
     }
@@ -572,6 +573,7 @@ public final class BenchCalibration {
         Path csv = null;
         boolean write = true;
         PhantomOptions.Truth truth = PhantomOptions.Truth.PRIORS;
+        PhantomOptions.FieldOfView fov = PhantomOptions.FieldOfView.BREAST;
         for (int i = 0; i < args.length; i++) {
             String a = args[i];
             switch (a) {
@@ -595,6 +597,7 @@ public final class BenchCalibration {
                             case "--plan-element-mm" -> planElement = Double.parseDouble(v);
                             case "--threads" -> threads = Integer.parseInt(v);
                             case "--truth" -> truth = PhantomOptions.Truth.parse(v);
+                            case "--field-of-view" -> fov = PhantomOptions.FieldOfView.parse(v);
                             case "--work" -> work = Path.of(v);
                             case "--csv" -> csv = Path.of(v);
                             default -> throw new IllegalArgumentException("unknown option " + a);
@@ -629,12 +632,13 @@ public final class BenchCalibration {
         new PhantomOptions(from, spacing, d.breasts(), d.side(), d.breastVolumeMl(), d.projection(), d.ptosis(),
                 d.lesionDiameterMm(), lesions, d.contrast(), d.snr(), truthElement);
         return new Settings(from, to, spacing, truthElement, lesions, samples, planElement, threads, work, csv, write,
-                truth);
+                truth, fov);
     }
 
     private static String usage() {
         return "usage: BenchCalibration --from SEED [--to SEED] [--spacing-mm 4] [--element-mm 8 (truth)] [--lesions 1]\n"
                 + "         [--samples 8] [--plan-element-mm H (default: case.json's)] [--truth priors|default (priors)]\n"
+                + "         [--field-of-view breast|chest (breast)]\n"
                 + "         [--threads N] [--work DIR (kept)]\n"
                 + "         [--csv FILE] [--no-outputs (skip writing the plan folder)]";
     }

@@ -139,4 +139,76 @@ class PhantomAnatomyTest {
         assertTrue(e.getMessage().contains("lesion_mm"));
         assertTrue(e.getMessage().contains("40"));
     }
+
+    /**
+     * The chest field of view: the image spans both flanks of the torso and back to its centre line; the
+     * breast, ducts and lesions are those of the same seed with the breast field of view (the ribs draw from
+     * a stream of their own); labels stay 0–5, the chest wall under the muscle is drawn as bone, muscle
+     * between ribs, lung and heart; the rib pitches lie in the stated range.
+     */
+    @Test
+    void theChestFieldOfViewShowsTheWholeChestWithRibsAndKeepsTheBreast() {
+        PhantomAnatomy breast = PhantomAnatomy.build(OPTS, Progress.NONE);
+        PhantomAnatomy chest = PhantomAnatomy.build(OPTS.withFieldOfView(PhantomOptions.FieldOfView.CHEST),
+                Progress.NONE);
+        assertArrayEquals(breast.branchPoints(), chest.branchPoints());
+        assertArrayEquals(breast.lesionCentre(0), chest.lesionCentre(0));
+        assertArrayEquals(breast.nipple(0), chest.nipple(0));
+        assertEquals(0, breast.ribCentresMm().length, "no ribs drawn with the breast field of view");
+        Grid3 g = chest.grid();
+        double[] lo = g.worldOf(0, 0, 0);
+        double[] hi = g.worldOf(g.nx() - 1, g.ny() - 1, g.nz() - 1);
+        assertTrue(lo[0] <= -PhantomAnatomy.TORSO_AX_MM && hi[0] >= PhantomAnatomy.TORSO_AX_MM, "both flanks");
+        assertTrue(lo[1] <= PhantomAnatomy.TORSO_CY_MM, "back to the torso's centre line");
+        assertEquals(breast.grid().worldOf(0, 0, 0)[2], lo[2], 1e-9, "same z extent");
+
+        double[] ribs = chest.ribCentresMm();
+        assertTrue(ribs.length >= 8, "ribs over the image and the 80 mm margins: " + ribs.length);
+        for (int r = 1; r < ribs.length; r++) {
+            double pitch = ribs[r] - ribs[r - 1];
+            assertTrue(pitch >= PhantomAnatomy.RIB_PITCH_MIN_MM && pitch < PhantomAnatomy.RIB_PITCH_MAX_MM,
+                    "pitch " + pitch);
+        }
+        // along a line at the middle of the rib layer, 60 mm right of the midline: bone on a rib's centre
+        // line (raised by the lateral rise), muscle half-way between two ribs; sternum at the midline
+        double depth = PhantomAnatomy.RIB_LAYER_MM + PhantomAnatomy.RIB_THICKNESS_MM / 2;
+        double x = 60;
+        double[] onSurface = surfacePoint(x);
+        double[] inward = inwardNormal(x);
+        double px = onSurface[0] + depth * inward[0];
+        double py = onSurface[1] + depth * inward[1];
+        int mid = ribs.length / 2;
+        double rise = PhantomAnatomy.RIB_RISE * Math.abs(px);
+        double skin = PhantomAnatomy.SKIN_MM;
+        assertEquals(PhantomAnatomy.BONE, chest.tissueClass(px, py, ribs[mid] + rise, skin));
+        assertEquals(PhantomAnatomy.MUSCLE, chest.tissueClass(px, py, 0.5 * (ribs[mid] + ribs[mid + 1]) + rise, skin));
+        assertEquals(PhantomAnatomy.BONE, chest.tissueClass(0, -depth, 0.5 * (ribs[mid] + ribs[mid + 1]), skin),
+                "sternum");
+        assertEquals(PhantomAnatomy.LUNG, chest.tissueClass(90, -100, 0, skin));
+        assertEquals(PhantomAnatomy.HEART, chest.tissueClass(PhantomAnatomy.HEART_CENTRE_XY_MM[0],
+                PhantomAnatomy.HEART_CENTRE_XY_MM[1], 0.5 * (lo[2] + hi[2]) - 10, skin));
+        for (int c : new int[] {PhantomAnatomy.BONE, PhantomAnatomy.LUNG, PhantomAnatomy.HEART}) {
+            assertEquals(4, PhantomAnatomy.labelOf(c), "drawn inside the chest wall, labelled chest wall");
+        }
+        byte[] l = chest.rasterizeLabels(g);
+        for (byte b : l) {
+            assertTrue(b >= 0 && b <= 5, "label " + b);
+        }
+    }
+
+    /** The torso surface point above x on the anterior ellipse (RAS mm). */
+    private static double[] surfacePoint(double x) {
+        double ay = PhantomAnatomy.TORSO_AY_MM * Math.sqrt(1 - Math.pow(x / PhantomAnatomy.TORSO_AX_MM, 2));
+        return new double[] {x, PhantomAnatomy.TORSO_CY_MM + ay};
+    }
+
+    /** The inward unit normal of the torso ellipse at that point. */
+    private static double[] inwardNormal(double x) {
+        double[] p = surfacePoint(x);
+        double gx = p[0] / (PhantomAnatomy.TORSO_AX_MM * PhantomAnatomy.TORSO_AX_MM);
+        double gy = (p[1] - PhantomAnatomy.TORSO_CY_MM) / (PhantomAnatomy.TORSO_AY_MM * PhantomAnatomy.TORSO_AY_MM);
+        double n = Math.hypot(gx, gy);
+        return new double[] {-gx / n, -gy / n};
+    }
+
 }

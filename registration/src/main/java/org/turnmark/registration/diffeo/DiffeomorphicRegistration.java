@@ -158,7 +158,7 @@ public final class DiffeomorphicRegistration {
                 costInitial, costFinal, improved, reports, jac, jacResidual, seconds);
     }
 
-    private float[] movingAtLevel(Volume moving, Grid3 fine, int level) {
+    float[] movingAtLevel(Volume moving, Grid3 fine, int level) {
         if (level == 0) {
             return moving.data();
         }
@@ -169,7 +169,7 @@ public final class DiffeomorphicRegistration {
     }
 
     /** The level's metric; {@code swapped} gives the backward one (moving image as reference). */
-    private SimilarityMetric metricFor(Grid3 g, float[] f, byte[] m, float[] mov, byte[] movMask, RegistrationInput in,
+    SimilarityMetric metricFor(Grid3 g, float[] f, byte[] m, float[] mov, byte[] movMask, RegistrationInput in,
                                        boolean swapped) {
         IntensityRange rf = config.metric() == org.turnmark.registration.metric.MetricKind.SSD ? null
                 : IntensityRange.of(f, m, in.fixedName());
@@ -188,7 +188,7 @@ public final class DiffeomorphicRegistration {
         }
     }
 
-    private static void checkOverlap(LevelSolver solver, Grid3 g, RegistrationInput in) {
+    static void checkOverlap(LevelSolver solver, Grid3 g, RegistrationInput in) {
         try {
             solver.evaluate(VectorField.zeros(g));
         } catch (IllegalArgumentException e) {
