@@ -31,12 +31,13 @@ import org.turnmark.registration.volume.Volume;
  * <ol>
  *   <li>Rigid alignment T (supine image frame → prone image frame) of the supine image to the prone
  *       image warped by the mechanics prediction (the predicted supine shape with the chest wall held
- *       in place): first over the whole image; then, when the image holds enough of the chest wall to fix
- *       its own placement ({@link #CHEST_WALL_MIN_SPAN_MM} left to right), refined over the chest wall
- *       alone, coarse to fine ({@link RigidAligner}), so that the breast shape the mechanics predicts does
- *       not pull on it. With less chest wall (a field of view around one breast) the whole-image
- *       result is kept: on such images the torso alone does not determine its placement
- *       (docs/planner.md, "Rigid alignment").</li>
+ *       in place), over the whole image: the breast the mechanics predicts pulls on it as well as the
+ *       torso, which on the calibration phantoms makes the mechanics-only and hybrid predictions better
+ *       than an alignment of the torso alone (docs/planner.md, "Rigid alignment"). When the image holds
+ *       enough of the chest wall to fix its own placement ({@link #CHEST_WALL_MIN_SPAN_MM} left to right),
+ *       the chest wall alone is also aligned ({@link RigidAligner}) as a check: how far the two
+ *       alignments carry a lesion apart is the share of the mechanics prediction's error that the
+ *       whole-image alignment takes up as a rigid motion.</li>
  *   <li>Hybrid: the residual diffeomorphic registration of the prone image (moving) to the supine
  *       image (fixed), initialised with φ₀ = M⁻¹ ∘ T (M the mechanics prone → supine map), so the
  *       total map y ↦ y + u(y) sends a supine voxel to its prone tissue point.</li>
@@ -67,18 +68,13 @@ final class SupineStage {
     /** How the rigid alignment is found, as plan.json states it: the whole-image step. */
     static final String ALIGNMENT_METHOD = "rigid intensity alignment (LNCC, BOBYQA at about 4x the finest spacing) "
             + "of the supine image to the predicted supine image (prone image warped by the mechanics), whole image";
-    /** The chest-wall refinement, as plan.json states it. */
-    static final String CHEST_WALL_METHOD = "rigid intensity alignment of the supine image to the predicted supine "
-            + "image (prone image warped by the mechanics): whole image, then the chest wall alone (similarity "
-            + "restricted to the chest-wall label of the prediction; LNCC, BOBYQA restarted while it improves, at "
-            + "16, 8 and 4 mm)";
     /**
-     * Left-to-right span (mm) of the chest-wall label from which the alignment is refined on the chest wall
-     * alone. A field of view around one breast shows 130–140 mm of chest wall (the bundled phantoms), which
-     * does not fix the torso's placement: measured, the chest-wall-only alignment then lands further from the
-     * truth than the whole-image one (docs/planner.md). A bilateral field of view shows the sternum and both
-     * sides (about 300 mm on the chest field-of-view phantoms), and there it lands within about 1 mm RMS over
-     * the chest wall (docs/benchmarks.md). 200 mm lies between; a stated heuristic.
+     * Left-to-right span (mm) of the chest-wall label from which the chest wall alone is aligned as a check.
+     * A field of view around one breast shows 130–140 mm of chest wall (the bundled phantoms), which does not
+     * fix the torso's placement: measured, a chest-wall-only alignment then lands further from the truth
+     * than the whole-image one (docs/planner.md). A bilateral field of view shows the sternum and both sides
+     * (about 300 mm on the chest field-of-view phantoms), and there it lands within about 1 mm RMS over the
+     * chest wall (docs/benchmarks.md). 200 mm lies between; a stated heuristic.
      */
     static final double CHEST_WALL_MIN_SPAN_MM = 200;
     /** Grid spacings (mm) of the chest-wall refinement's levels, coarsest first. */
@@ -94,12 +90,13 @@ final class SupineStage {
     private final Volume supine;
     private final List<String> warnings;
     private final PointMap mechanics;
-    private final String alignmentMethod;
+    /** The chest wall's own alignment (supine image frame → prone image frame), or null when not in view. */
+    private final Affine3D chestWall;
 
-    private SupineStage(PointMap mechanics, Affine3D t, String alignmentMethod, VectorField hybrid, VectorField regOnly,
+    private SupineStage(PointMap mechanics, Affine3D t, Affine3D chestWall, VectorField hybrid, VectorField regOnly,
                         VectorField mechSupine, RegistrationResult hr, RegistrationResult rr, Volume prone, Volume supine,
                         List<String> warnings) {
-        this.alignmentMethod = alignmentMethod;
+        this.chestWall = chestWall;
         this.supineToProneFrame = t;
         this.hybrid = hybrid;
         this.regOnly = regOnly;
@@ -175,19 +172,27 @@ final class SupineStage {
             double[] m = inv.toRowMajor();
             double c = (m[0] + m[5] + m[10] - 1) / 2;
             double deg = Math.toDegrees(Math.acos(Math.max(-1, Math.min(1, c))));
-            return new PlanResult.RigidAlignment(s.alignmentMethod, m, deg, new double[] {m[3], m[7], m[11]});
+            return new PlanResult.RigidAlignment(ALIGNMENT_METHOD, m, deg, new double[] {m[3], m[7], m[11]});
+        }
+
+        /**
+         * How far apart (mm) the whole-image alignment and the chest wall's own alignment carry a prone-frame
+         * point into the supine frame; null when the chest wall was not aligned on its own.
+         */
+        Double chestWallDifferenceMm(double[] proneFramePoint) {
+            if (s.chestWall == null) {
+                return null;
+            }
+            return carriedApartMm(s.supineToProneFrame, s.chestWall, proneFramePoint);
         }
 
         void flags(List<PlanResult.QualityFlag> flags) {
             PlanResult.RigidAlignment a = alignment();
             flags.add(new PlanResult.QualityFlag(PlanResult.QualityFlag.OK, "rigid alignment", String.format(Locale.ROOT,
                     "prone frame (chest wall held in place) to supine image: rotation %.2f deg, translation (%.1f, %.1f, "
-                            + "%.1f) mm; %s",
-                    a.rotationDeg(), a.translationMm()[0], a.translationMm()[1], a.translationMm()[2],
-                    s.alignmentMethod.equals(ALIGNMENT_METHOD) ? "found on the whole image, so the breast shape the "
-                            + "mechanics predicts also pulls on it (its error is part of the mechanics-only supine-frame "
-                            + "uncertainty); the image holds too little chest wall to align it alone"
-                            : "found on the chest wall alone, after a whole-image start")));
+                            + "%.1f) mm; found on the whole image, so the breast shape the mechanics predicts also pulls "
+                            + "on it (its error is part of the mechanics-only supine-frame uncertainty)",
+                    a.rotationDeg(), a.translationMm()[0], a.translationMm()[1], a.translationMm()[2])));
             // folding is judged inside the body of the supine image: the fields are extrapolated
             // into the air around it, where a fold moves no tissue
             boolean[] body = AutoSegmentation.bodyMask(s.supine);
@@ -244,18 +249,12 @@ final class SupineStage {
         RegistrationResult align = new DiffeomorphicRegistration(rigidOnly).register(new RegistrationInput(supine,
                 predictedSupine, null, null, null, "supine image", "mechanics prediction"), progress.sub("registration", 0.02, 0.1));
         Affine3D t = align.preAlignment();
-        String method = ALIGNMENT_METHOD;
-        double span = chestWallSpanMm(labelGrid, labels);
-        if (span >= CHEST_WALL_MIN_SPAN_MM) {
+        Affine3D chestWall = null;
+        if (chestWallSpanMm(labelGrid, labels) >= CHEST_WALL_MIN_SPAN_MM) {
             Volume wall = chestWallMask(labelGrid, labels, prone.grid());
-            t = RigidAligner.align(RegistrationConfig.defaults(), new RegistrationInput(supine, predictedSupine, null,
-                    wall, null, "supine image", "mechanics prediction"), t, levels(supine.grid()),
+            chestWall = RigidAligner.align(RegistrationConfig.defaults(), new RegistrationInput(supine, predictedSupine,
+                    null, wall, null, "supine image", "mechanics prediction"), t, levels(supine.grid()),
                     progress.sub("registration", 0.06, 0.1)).fixedToMoving();
-            method = CHEST_WALL_METHOD;
-        } else {
-            warnings.add(String.format(Locale.ROOT, "the chest wall in the image spans %.0f mm left to right, less than "
-                    + "the %.0f mm a chest-wall-only alignment needs: the supine image was aligned on the whole image, "
-                    + "breast included", span, CHEST_WALL_MIN_SPAN_MM));
         }
 
         // φ₀ = M⁻¹ ∘ T on the supine grid.
@@ -272,8 +271,18 @@ final class SupineStage {
             warnings.add("the hybrid registration could not improve on the mechanics start; the hybrid prediction "
                     + "equals the rigidly aligned mechanics-only prediction");
         }
-        return new Result(new SupineStage(mechanics, t, method, hr.displacement(), rr.displacement(), phi0, hr, rr, prone,
+        return new Result(new SupineStage(mechanics, t, chestWall, hr.displacement(), rr.displacement(), phi0, hr, rr, prone,
                 supine, warnings));
+    }
+
+    /**
+     * Distance (mm) between where two supine → prone-frame alignments put a prone-frame point in the supine
+     * frame: |a⁻¹(p) − b⁻¹(p)|.
+     */
+    static double carriedApartMm(Affine3D a, Affine3D b, double[] p) {
+        double[] x = a.inverse().applyPoint(p[0], p[1], p[2]);
+        double[] y = b.inverse().applyPoint(p[0], p[1], p[2]);
+        return Math.sqrt((x[0] - y[0]) * (x[0] - y[0]) + (x[1] - y[1]) * (x[1] - y[1]) + (x[2] - y[2]) * (x[2] - y[2]));
     }
 
     /** Left-to-right span (mm) of the chest-wall voxels (label 4): max − min of their world x; 0 when none. */

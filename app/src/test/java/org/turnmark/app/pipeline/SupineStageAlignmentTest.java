@@ -36,6 +36,29 @@ class SupineStageAlignmentTest {
     }
 
     @Test
+    void aPlanOnAChestWideImageIsToldItsEllipsoidsWereCalibratedOnNarrowerOnes() {
+        Grid3 g = Grid3.axisAligned(60, 4, 4, 5, 5, 5, -100, 0, 0);
+        assertEquals(Planner.WIDE_FIELD_WARNING, Planner.wideFieldWarning(g, wall(g, 0, 59)));
+        assertEquals(null, Planner.wideFieldWarning(g, wall(g, 3, 30)), "135 mm: around one breast");
+    }
+
+    /**
+     * The chest-wall check's distance: two alignments that differ by a 2° turn about z through the origin
+     * carry a point 100 mm from the axis 2 · 100 · sin(1°) = 3.49 mm apart (chord of the arc), and a pure
+     * shift by its length.
+     */
+    @Test
+    void theCheckMeasuresHowFarTwoAlignmentsCarryAPointApart() {
+        org.turnmark.geom.Affine3D id = org.turnmark.geom.Affine3D.identity();
+        org.turnmark.geom.Affine3D turn = org.turnmark.geom.Affine3D.rotation(0, 0, 1, Math.toRadians(2));
+        assertEquals(200 * Math.sin(Math.toRadians(1)), SupineStage.carriedApartMm(id, turn, new double[] {100, 0, 7}),
+                1e-9);
+        assertEquals(0, SupineStage.carriedApartMm(id, turn, new double[] {0, 0, 50}), 1e-12, "on the axis");
+        assertEquals(5, SupineStage.carriedApartMm(org.turnmark.geom.Affine3D.translation(3, 4, 0), id,
+                new double[] {10, 20, 30}), 1e-12);
+    }
+
+    @Test
     void levelsAreTheNearestPyramidLevelsTo16And8And4Millimetres() {
         // level l has about 2^l times the finest spacing
         assertArrayEquals(new int[] {4, 3, 2}, SupineStage.levels(Grid3.axisAligned(8, 8, 8, 1, 1, 1, 0, 0, 0)));
