@@ -69,10 +69,10 @@ final class CaseSummary {
             rows.add(new InfoRow("Other priors", String.format(Locale.ROOT,
                     "sliding chest wall p = %s, gravity ± %s°, marking ± %s mm, registration ± %s mm, "
                             + "mechanics in the supine frame ± %s mm, in the prone frame × %s on the sampled "
-                            + "covariance ± %s mm (SD)",
+                            + "covariance (× %s when the chest is in view) ± %s mm (SD)",
                     num(p.chestWallSlidingProbability()), num(p.gravityDirectionSdDeg()),
                     num(p.lesionMarkingSdMm()), num(p.registrationSdMm()), num(p.mechanicsSupineSdMm()),
-                    num(p.mechanicsProneScale()), num(p.mechanicsProneSdMm()))));
+                    num(p.mechanicsProneScale()), num(p.mechanicsProneScaleWideField()), num(p.mechanicsProneSdMm()))));
         }
         CaseFile.UncertaintyOptions u = c.uncertainty();
         if (u != null) {

@@ -113,7 +113,7 @@ public record CaseFile(
     @JsonInclude(JsonInclude.Include.NON_NULL)
     @JsonPropertyOrder({"fat", "fibroglandular", "skin", "lesion", "nu", "chest_wall_sliding_probability",
         "gravity_direction_sd_deg", "lesion_marking_sd_mm", "registration_sd_mm", "mechanics_supine_sd_mm",
-        "mechanics_prone_sd_mm", "mechanics_prone_scale"})
+        "mechanics_prone_sd_mm", "mechanics_prone_scale", "mechanics_prone_scale_wide_field"})
     public record Priors(
             @JsonProperty("fat") TissuePrior fat,
             @JsonProperty("fibroglandular") TissuePrior fibroglandular,
@@ -126,7 +126,8 @@ public record CaseFile(
             @JsonProperty("registration_sd_mm") Double registrationSdMm,
             @JsonProperty("mechanics_supine_sd_mm") Double mechanicsSupineSdMm,
             @JsonProperty("mechanics_prone_sd_mm") Double mechanicsProneSdMm,
-            @JsonProperty("mechanics_prone_scale") Double mechanicsProneScale) {
+            @JsonProperty("mechanics_prone_scale") Double mechanicsProneScale,
+            @JsonProperty("mechanics_prone_scale_wide_field") Double mechanicsProneScaleWideField) {
     }
 
     /** Log-normal prior on a tissue's shear modulus, and its density. */

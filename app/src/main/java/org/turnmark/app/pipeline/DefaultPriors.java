@@ -21,7 +21,7 @@ public final class DefaultPriors {
                 CaseFileReader.DEFAULT_SLIDING_PROBABILITY, CaseFileReader.DEFAULT_GRAVITY_SD_DEG,
                 CaseFileReader.DEFAULT_LESION_MARKING_SD_MM, CaseFileReader.DEFAULT_REGISTRATION_SD_MM,
                 CaseFileReader.DEFAULT_MECHANICS_SUPINE_SD_MM, CaseFileReader.DEFAULT_MECHANICS_PRONE_SD_MM,
-                CaseFileReader.DEFAULT_MECHANICS_PRONE_SCALE);
+                CaseFileReader.DEFAULT_MECHANICS_PRONE_SCALE, CaseFileReader.DEFAULT_MECHANICS_PRONE_SCALE_WIDE_FIELD);
     }
 
     /** The sampling spec the planner builds from the default priors (same code path as a plan). */

@@ -350,7 +350,8 @@ public final class BenchCalibration {
                         ? c.priors().mechanicsSupineSdMm() : MECHANICS_PRONE.equals(method)
                         ? c.priors().mechanicsProneSdMm() : null, MECHANICS_SUPINE.equals(method) ? alignErr : null,
                         p.covarianceMm2() == null ? null : MECHANICS_SUPINE.equals(method) ? Double.valueOf(1)
-                        : MECHANICS_PRONE.equals(method) ? c.priors().mechanicsProneScale() : null));
+                        : MECHANICS_PRONE.equals(method) ? Planner.proneScale(c.priors(),
+                        r.warnings().contains(Planner.WIDE_FIELD_WARNING)) : null));
             }
         }
         return rows;

@@ -127,6 +127,8 @@ class CaseFileReaderTest {
                 "}], \"priors\": {\"mechanics_prone_sd_mm\": 51}}")).key());
         assertEquals("priors.mechanics_prone_scale", fails(MINIMAL.replace("}]}",
                 "}], \"priors\": {\"mechanics_prone_scale\": 0.5}}")).key());
+        assertEquals("priors.mechanics_prone_scale_wide_field", fails(MINIMAL.replace("}]}",
+                "}], \"priors\": {\"mechanics_prone_scale_wide_field\": 11}}")).key());
     }
 
     @Test
@@ -139,6 +141,9 @@ class CaseFileReaderTest {
         assertEquals(CaseFileReader.DEFAULT_MECHANICS_PRONE_SCALE, c.priors().mechanicsProneScale());
         c = read(MINIMAL.replace("}]}", "}], \"priors\": {\"mechanics_prone_scale\": 2.5}}"));
         assertEquals(2.5, c.priors().mechanicsProneScale());
+        assertEquals(CaseFileReader.DEFAULT_MECHANICS_PRONE_SCALE_WIDE_FIELD, c.priors().mechanicsProneScaleWideField());
+        c = read(MINIMAL.replace("}]}", "}], \"priors\": {\"mechanics_prone_scale_wide_field\": 4}}"));
+        assertEquals(4.0, c.priors().mechanicsProneScaleWideField());
     }
 
     @Test

@@ -48,14 +48,20 @@ class PlannerTest {
         CaseFile.Priors d = DefaultPriors.priors();
         CaseFile.Priors p = new CaseFile.Priors(d.fat(), d.fibroglandular(), d.skin(), d.lesion(), d.nu(),
                 d.chestWallSlidingProbability(), d.gravityDirectionSdDeg(), d.lesionMarkingSdMm(), d.registrationSdMm(),
-                d.mechanicsSupineSdMm(), 1.5, 2.0);
+                d.mechanicsSupineSdMm(), 1.5, 2.0, 3.0);
         double[] m = {4, 1, -2, 1, 9, 0.5, -2, 0.5, 16};
-        double[] c = Planner.proneCovariance(m, p);
+        double[] c = Planner.proneCovariance(m, p, false);
         double[] expected = {2 * 4 + 2.25, 2, -4, 2, 2 * 9 + 2.25, 1, -4, 1, 2 * 16 + 2.25};
         for (int i = 0; i < 9; i++) {
             assertEquals(expected[i], c[i], 1e-12, "entry " + i);
         }
         assertEquals(4, m[0], "the sampled covariance is left as it was");
+        // an image showing the chest wall across the chest takes the wide-field factor
+        double[] w = Planner.proneCovariance(m, p, true);
+        assertEquals(3 * 4 + 2.25, w[0], 1e-12);
+        assertEquals(3 * 1, w[1], 1e-12);
+        assertEquals(3.0, Planner.proneScale(p, true));
+        assertEquals(2.0, Planner.proneScale(p, false));
     }
 
     @Test
