@@ -401,7 +401,8 @@ public final class MainViewModel {
         }
         return new CaseFile(c.schemaVersion(), c.caseId(), c.description(), c.proneImage(), c.supineImage(),
                 c.labels(), c.laterality(), lesions, c.nipples(), c.chestWallPlaneRasMm(), c.model(), c.priors(),
-                c.uncertainty(), outputFolder.get().isBlank() ? c.output() : outputFolder.get(), c.truth());
+                c.uncertainty(), c.rigidAlignment(), outputFolder.get().isBlank() ? c.output() : outputFolder.get(),
+                c.truth());
     }
 
     /**

@@ -18,7 +18,7 @@ import com.fasterxml.jackson.annotation.JsonPropertyOrder;
 @JsonInclude(JsonInclude.Include.NON_NULL)
 @JsonPropertyOrder({"schema_version", "case_id", "description", "prone_image", "supine_image", "labels",
     "laterality", "lesions", "nipples", "chest_wall_plane_ras_mm", "model", "priors", "uncertainty",
-    "output", "truth"})
+    "rigid_alignment", "output", "truth"})
 public record CaseFile(
         @JsonProperty("schema_version") Integer schemaVersion,
         @JsonProperty("case_id") String caseId,
@@ -33,8 +33,14 @@ public record CaseFile(
         @JsonProperty("model") ModelOptions model,
         @JsonProperty("priors") Priors priors,
         @JsonProperty("uncertainty") UncertaintyOptions uncertainty,
+        @JsonProperty("rigid_alignment") String rigidAlignment,
         @JsonProperty("output") String output,
         @JsonProperty("truth") Truth truth) {
+
+    /** {@code rigid_alignment}: the whole image decides (the default). */
+    public static final String ALIGN_WHOLE_IMAGE = "whole_image";
+    /** {@code rigid_alignment}: the chest wall alone decides, when the image shows it across the chest. */
+    public static final String ALIGN_CHEST_WALL = "chest_wall";
 
     /** The schema version this code reads and writes. */
     public static final int SCHEMA_VERSION = 1;
@@ -57,7 +63,7 @@ public record CaseFile(
         ModelOptions m2 = new ModelOptions(elementSizeMm, model == null ? null : model.chestWall(),
                 model == null ? null : model.gravityMS2());
         return new CaseFile(schemaVersion, caseId, description, proneImage, supineImage, labels, laterality, lesions,
-                nipples, chestWallPlaneRasMm, m2, priors, uncertainty, output, truth);
+                nipples, chestWallPlaneRasMm, m2, priors, uncertainty, rigidAlignment, output, truth);
     }
 
     /**

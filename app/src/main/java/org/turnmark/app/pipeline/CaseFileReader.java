@@ -201,6 +201,12 @@ public final class CaseFileReader {
             ModelOptions model = model(c.model());
             Priors priors = priors(c.priors());
             UncertaintyOptions unc = uncertainty(c.uncertainty());
+            String align = c.rigidAlignment() == null ? CaseFile.ALIGN_WHOLE_IMAGE
+                    : c.rigidAlignment().trim().toLowerCase(Locale.ROOT);
+            if (!align.equals(CaseFile.ALIGN_WHOLE_IMAGE) && !align.equals(CaseFile.ALIGN_CHEST_WALL)) {
+                throw fail("rigid_alignment", "expected \"" + CaseFile.ALIGN_WHOLE_IMAGE + "\" or \""
+                        + CaseFile.ALIGN_CHEST_WALL + "\", got \"" + c.rigidAlignment() + "\"");
+            }
             String output = c.output() == null ? null : dir.resolve(c.output()).normalize().toString();
             Truth truth = truth(c.truth());
             String caseId = c.caseId();
@@ -209,7 +215,7 @@ public final class CaseFileReader {
                 caseId = name;
             }
             return new CaseFile(CaseFile.SCHEMA_VERSION, caseId, c.description(), prone, supine, labels, laterality,
-                    lesions, nipples, plane, model, priors, unc, output, truth);
+                    lesions, nipples, plane, model, priors, unc, align, output, truth);
         }
 
         private CaseFormatException fail(String key, String problem) {

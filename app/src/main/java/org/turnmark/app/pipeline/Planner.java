@@ -209,7 +209,8 @@ public final class Planner {
         SupineStage.Result reg = null;
         if (supine != null) {
             p = timer.begin("registration");
-            reg = SupineStage.run(prone, supine, lg, labels, mech, p, warnings);
+            reg = SupineStage.run(prone, supine, lg, labels, mech,
+                    CaseFile.ALIGN_CHEST_WALL.equals(c.rigidAlignment()), p, warnings);
         } else {
             timer.skip("registration");
             warnings.add("no supine image: only the mechanics-only prediction (prone image frame, chest wall held "
@@ -335,11 +336,11 @@ public final class Planner {
             reg.flags(flags);
             if (!chestWallDiff.isEmpty()) {
                 flags.add(new PlanResult.QualityFlag(PlanResult.QualityFlag.OK, "chest-wall alignment check",
-                        "aligning the chest wall alone (the image shows it across the chest) would carry the "
-                                + "mechanics-only prediction this far from where the whole-image alignment puts it: "
+                        "the image shows the chest wall across the chest; aligning it alone and aligning the whole "
+                                + "image carry the mechanics-only prediction this far apart: "
                                 + String.join(", ", chestWallDiff) + ". That is the share of the mechanics prediction's "
                                 + "error the whole-image alignment takes up as a rigid motion (not the whole error); on "
-                                + "the phantoms taking it up makes the mechanics-only and hybrid predictions better "
+                                + "the phantoms taking it up made the mechanics-only and hybrid predictions better "
                                 + "(docs/planner.md, Rigid alignment)"));
             }
             QualityFlags.disagreement(flags, lesionResults);

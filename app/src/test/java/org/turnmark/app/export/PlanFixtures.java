@@ -27,7 +27,7 @@ final class PlanFixtures {
                 List.of(new CaseFile.LesionMark("L1", "left", new double[] {-60, 80, 10}, null, 5.0, null, null)),
                 List.of(new CaseFile.NippleMark("left", new double[] {-80, 120, 0})), null,
                 new CaseFile.ModelOptions(6.0, "sliding", 9.80665), null, new CaseFile.UncertaintyOptions(12, "sobol", 1L),
-                null, null);
+                null, null, null);
         Descriptors.Descriptor prone = Descriptors.compute("left", new double[] {-60, 80, 10},
                 new double[] {-80, 120, 0}, new double[] {-80, 40, 0}, 12.5, depthFromChestWallMm);
         double[] cov = {9, 1, 0, 1, 4, 0, 0, 0, 1};

@@ -129,6 +129,7 @@ class CaseFileReaderTest {
                 "}], \"priors\": {\"mechanics_prone_scale\": 0.5}}")).key());
         assertEquals("priors.mechanics_prone_scale_wide_field", fails(MINIMAL.replace("}]}",
                 "}], \"priors\": {\"mechanics_prone_scale_wide_field\": 11}}")).key());
+        assertEquals("rigid_alignment", fails(MINIMAL.replace("}]}", "}], \"rigid_alignment\": \"torso\"}")).key());
     }
 
     @Test
@@ -144,6 +145,9 @@ class CaseFileReaderTest {
         assertEquals(CaseFileReader.DEFAULT_MECHANICS_PRONE_SCALE_WIDE_FIELD, c.priors().mechanicsProneScaleWideField());
         c = read(MINIMAL.replace("}]}", "}], \"priors\": {\"mechanics_prone_scale_wide_field\": 4}}"));
         assertEquals(4.0, c.priors().mechanicsProneScaleWideField());
+        assertEquals(CaseFile.ALIGN_WHOLE_IMAGE, c.rigidAlignment(), "the default");
+        c = read(MINIMAL.replace("}]}", "}], \"rigid_alignment\": \"Chest_Wall\"}"));
+        assertEquals(CaseFile.ALIGN_CHEST_WALL, c.rigidAlignment());
     }
 
     @Test
