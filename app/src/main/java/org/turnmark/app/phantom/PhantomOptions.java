@@ -38,21 +38,14 @@ public record PhantomOptions(long seed, double spacingMm, int breasts, String si
         BREAST,
         /**
          * Both sides of the chest and the anterior half of the torso (down to the torso's centre line),
-         * with a sternum, ribs at an irregular pitch and lungs drawn inside the chest wall, so that the
+         * with a sternum, ribs at an irregular pitch, lungs and a heart drawn inside the chest wall, so that the
          * torso alone fixes its own placement in the image.
          */
         CHEST;
 
         /** Parses "breast" or "chest" (any case). */
         public static FieldOfView parse(String s) {
-            String v = s.trim().toLowerCase(Locale.ROOT);
-            if (v.equals("breast")) {
-                return BREAST;
-            }
-            if (v.equals("chest")) {
-                return CHEST;
-            }
-            throw new IllegalArgumentException("field of view must be breast or chest, got '" + s + "'");
+            return parseKey(FieldOfView.class, s, "field of view");
         }
 
         /** The lower-case name used on the command line and in the truth files. */
@@ -77,14 +70,7 @@ public record PhantomOptions(long seed, double spacingMm, int breasts, String si
 
         /** Parses "default" or "priors" (any case). */
         public static Truth parse(String s) {
-            String v = s.trim().toLowerCase(Locale.ROOT);
-            if (v.equals("default")) {
-                return DEFAULT;
-            }
-            if (v.equals("priors")) {
-                return PRIORS;
-            }
-            throw new IllegalArgumentException("truth must be default or priors, got '" + s + "'");
+            return parseKey(Truth.class, s, "truth");
         }
 
         /** The lower-case name used on the command line and in the truth files. */
@@ -102,14 +88,7 @@ public record PhantomOptions(long seed, double spacingMm, int breasts, String si
 
         /** Parses "t1" or "fatsat" (any case). */
         public static Contrast parse(String s) {
-            String v = s.trim().toLowerCase(Locale.ROOT);
-            if (v.equals("t1")) {
-                return T1;
-            }
-            if (v.equals("fatsat")) {
-                return FATSAT;
-            }
-            throw new IllegalArgumentException("contrast must be t1 or fatsat, got '" + s + "'");
+            return parseKey(Contrast.class, s, "contrast");
         }
     }
 
@@ -173,6 +152,24 @@ public record PhantomOptions(long seed, double spacingMm, int breasts, String si
     /** Defaults: 2 mm voxels, one right breast of 350 ml, one 12 mm lesion, T1 contrast, SNR 25, 5 mm elements. */
     public static PhantomOptions defaults(long seed) {
         return new PhantomOptions(seed, 2.0, 1, "right", 350, 0.85, 0.3, 12, 1, Contrast.T1, 25, 5.0);
+    }
+
+    /**
+     * The constant of {@code type} whose lower-case name is {@code s} (trimmed, any case); otherwise an error
+     * "WHAT must be a or b, got 's'".
+     */
+    private static <E extends Enum<E>> E parseKey(Class<E> type, String s, String what) {
+        E[] all = type.getEnumConstants();
+        String v = s == null ? "" : s.trim().toLowerCase(Locale.ROOT);
+        StringBuilder names = new StringBuilder();
+        for (int i = 0; i < all.length; i++) {
+            String key = all[i].name().toLowerCase(Locale.ROOT);
+            if (key.equals(v)) {
+                return all[i];
+            }
+            names.append(i == 0 ? "" : i == all.length - 1 ? " or " : ", ").append(key);
+        }
+        throw new IllegalArgumentException(what + " must be " + names + ", got '" + s + "'");
     }
 
     private static void range(String name, double v, double lo, double hi) {

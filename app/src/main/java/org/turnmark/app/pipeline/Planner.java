@@ -136,7 +136,8 @@ public final class Planner {
         if (cutWarning != null) {
             warnings.add(cutWarning);
         }
-        String wide = wideFieldWarning(lg, labels);
+        double chestWallSpan = SupineStage.chestWallSpanMm(lg, labels);
+        String wide = wideFieldWarning(chestWallSpan);
         boolean wideField = wide != null;
         if (wideField) {
             warnings.add(wide);
@@ -209,7 +210,7 @@ public final class Planner {
         SupineStage.Result reg = null;
         if (supine != null) {
             p = timer.begin("registration");
-            reg = SupineStage.run(prone, supine, lg, labels, mech,
+            reg = SupineStage.run(prone, supine, lg, labels, mech, chestWallSpan,
                     CaseFile.ALIGN_CHEST_WALL.equals(c.rigidAlignment()), p, warnings);
         } else {
             timer.skip("registration");
@@ -618,9 +619,13 @@ public final class Planner {
         return wideField ? p.mechanicsProneScaleWideField() : p.mechanicsProneScale();
     }
 
-    /** {@link #WIDE_FIELD_WARNING} when the chest-wall label spans the chest, else null. */
-    static String wideFieldWarning(Grid3 g, byte[] labels) {
-        return SupineStage.chestWallSpanMm(g, labels) >= SupineStage.CHEST_WALL_MIN_SPAN_MM ? WIDE_FIELD_WARNING : null;
+    /**
+     * {@link #WIDE_FIELD_WARNING} when the chest-wall label spans the chest, else null.
+     *
+     * @param chestWallSpanMm {@link SupineStage#chestWallSpanMm} of the labels
+     */
+    static String wideFieldWarning(double chestWallSpanMm) {
+        return chestWallSpanMm >= SupineStage.CHEST_WALL_MIN_SPAN_MM ? WIDE_FIELD_WARNING : null;
     }
 
     /**

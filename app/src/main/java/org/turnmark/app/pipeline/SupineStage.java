@@ -9,6 +9,7 @@ import org.turnmark.geom.Grid3;
 import org.turnmark.geom.Progress;
 import org.turnmark.mechanics.mesh.DenseDisplacement;
 import org.turnmark.mechanics.mesh.DisplacementFieldSampler;
+import org.turnmark.mechanics.mesh.LabelMesher;
 import org.turnmark.mechanics.mesh.PointMap;
 import org.turnmark.registration.diffeo.DiffeomorphicRegistration;
 import org.turnmark.registration.diffeo.PreAlignment;
@@ -253,10 +254,12 @@ final class SupineStage {
     /**
      * Runs the three registrations.
      *
-     * @param mechanics the mechanics prone → supine map (prone frame)
+     * @param mechanics        the mechanics prone → supine map (prone frame)
+     * @param chestWallSpanMm  {@link #chestWallSpanMm} of the labels (computed once by the planner)
+     * @param chestWallCarries whether the case asks the chest wall's own alignment to carry the predictions
      */
     static Result run(Volume prone, Volume supine, Grid3 labelGrid, byte[] labels, PointMap mechanics,
-                      boolean chestWallCarries, Progress progress, List<String> warnings) {
+                      double chestWallSpanMm, boolean chestWallCarries, Progress progress, List<String> warnings) {
         // Mechanics pull-back field on the prone grid (y in the predicted supine shape → prone point).
         PointMap inverse = reverse(mechanics);
         DenseDisplacement dd = DisplacementFieldSampler.sample(inverse, prone.grid(),
@@ -271,7 +274,7 @@ final class SupineStage {
                 predictedSupine, null, null, null, "supine image", "mechanics prediction"), progress.sub("registration", 0.02, 0.1));
         Affine3D t = align.preAlignment();
         Affine3D chestWall = null;
-        double span = chestWallSpanMm(labelGrid, labels);
+        double span = chestWallSpanMm;
         if (span >= CHEST_WALL_MIN_SPAN_MM) {
             Volume wall = chestWallMask(labelGrid, labels, prone.grid());
             chestWall = RigidAligner.align(RegistrationConfig.defaults(), new RegistrationInput(supine, predictedSupine,
@@ -320,15 +323,20 @@ final class SupineStage {
         return Math.sqrt((x[0] - y[0]) * (x[0] - y[0]) + (x[1] - y[1]) * (x[1] - y[1]) + (x[2] - y[2]) * (x[2] - y[2]));
     }
 
-    /** Left-to-right span (mm) of the chest-wall voxels (label 4): max − min of their world x; 0 when none. */
+    /**
+     * Left-to-right span (mm) of the chest-wall voxels ({@link LabelMesher#CHEST_WALL}): max − min of their
+     * world (RAS) x; 0 when none.
+     */
     static double chestWallSpanMm(Grid3 g, byte[] labels) {
+        double[] m = g.voxelToWorld().toRowMajor();
         double lo = Double.POSITIVE_INFINITY;
         double hi = Double.NEGATIVE_INFINITY;
+        int n = 0;
         for (int k = 0; k < g.nz(); k++) {
             for (int j = 0; j < g.ny(); j++) {
-                for (int i = 0; i < g.nx(); i++) {
-                    if (labels[g.index(i, j, k)] == CHEST_WALL_LABEL) {
-                        double x = g.worldOf(i, j, k)[0];
+                for (int i = 0; i < g.nx(); i++, n++) {
+                    if (labels[n] == LabelMesher.CHEST_WALL) {
+                        double x = m[0] * i + m[1] * j + m[2] * k + m[3];
                         lo = Math.min(lo, x);
                         hi = Math.max(hi, x);
                     }
@@ -338,14 +346,11 @@ final class SupineStage {
         return hi >= lo ? hi - lo : 0;
     }
 
-    /** Label of the chest wall (mechanics conventions). */
-    static final int CHEST_WALL_LABEL = 4;
-
     /** The chest-wall label as a 0/1 mask on {@code target} (nearest neighbour when the grids differ). */
     static Volume chestWallMask(Grid3 labelGrid, byte[] labels, Grid3 target) {
         float[] m = new float[labels.length];
         for (int v = 0; v < m.length; v++) {
-            m[v] = labels[v] == CHEST_WALL_LABEL ? 1f : 0f;
+            m[v] = labels[v] == LabelMesher.CHEST_WALL ? 1f : 0f;
         }
         Volume onLabels = new Volume(labelGrid, m);
         return labelGrid.sameGrid(target, DisplacementFields.GRID_TOLERANCE_MM) ? onLabels

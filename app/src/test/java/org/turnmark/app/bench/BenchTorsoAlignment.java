@@ -1,15 +1,13 @@
 package org.turnmark.app.bench;
 
-import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.Locale;
 
-import com.fasterxml.jackson.databind.JsonNode;
-import com.fasterxml.jackson.databind.ObjectMapper;
 import org.turnmark.app.pipeline.CaseInputs;
 import org.turnmark.app.phantom.PhantomAnatomy;
 import org.turnmark.geom.Affine3D;
 import org.turnmark.geom.Grid3;
+import org.turnmark.mechanics.mesh.LabelMesher;
 import org.turnmark.registration.diffeo.DiffeomorphicRegistration;
 import org.turnmark.registration.diffeo.PreAlignment;
 import org.turnmark.registration.diffeo.RegistrationConfig;
@@ -20,7 +18,8 @@ import org.turnmark.registration.volume.Volume;
 /**
  * Measures rigid alignments of a phantom's supine image to its prone image (which stands in for the
  * predicted supine shape) against the phantom's true torso placement: RMS and largest error over the
- * supine image's chest-wall voxels (label 4), mm. Whole image (the planner's current alignment) against
+ * supine image's chest-wall voxels (label 4), mm. The true placement is {@link BenchCalibration#truePlacement}
+ * (a Kabsch fit to the truth displacement on the chest wall). Whole image (the planner's current alignment) against
  * the chest wall alone (moving mask = the prone chest-wall label), coarse to fine from two starts.
  *
  * <pre>java -cp turnmark.jar:test-classes org.turnmark.app.bench.BenchTorsoAlignment CASE_DIR...</pre>
@@ -37,19 +36,6 @@ public final class BenchTorsoAlignment {
         }
     }
 
-    /** The true map from supine world to the body (prone) frame: the inverse of the torso placement. */
-    static Affine3D truePlacementInverse(Path dir) throws Exception {
-        JsonNode t = new ObjectMapper().readTree(Files.readString(dir.resolve("truth/truth.json")))
-                .path("truth_conditions");
-        double deg = t.path("supine_torso_rotation_deg_about_z").asDouble();
-        JsonNode s = t.path("supine_table_shift_mm");
-        Affine3D rot = Affine3D.translation(0, PhantomAnatomy.TORSO_CY_MM, 0)
-                .compose(Affine3D.rotation(0, 0, 1, Math.toRadians(deg)))
-                .compose(Affine3D.translation(0, -PhantomAnatomy.TORSO_CY_MM, 0));
-        return Affine3D.translation(s.get(0).asDouble(), s.get(1).asDouble(), s.get(2).asDouble()).compose(rot)
-                .inverse();
-    }
-
     static double[] error(Affine3D a, Affine3D truth, Volume supineLabels) {
         Grid3 g = supineLabels.grid();
         float[] l = supineLabels.data();
@@ -59,7 +45,7 @@ public final class BenchTorsoAlignment {
         for (int k = 0; k < g.nz(); k++) {
             for (int j = 0; j < g.ny(); j++) {
                 for (int i = 0; i < g.nx(); i++) {
-                    if (Math.round(l[g.index(i, j, k)]) != 4) {
+                    if (Math.round(l[g.index(i, j, k)]) != LabelMesher.CHEST_WALL) {
                         continue;
                     }
                     double[] y = g.worldOf(i, j, k);
@@ -85,7 +71,8 @@ public final class BenchTorsoAlignment {
         Volume supine = CaseInputs.readImage("supine", dir.resolve("supine.nii.gz").toString());
         Volume proneLabels = CaseInputs.readImage("labels", dir.resolve("prone_labels.nii.gz").toString());
         Volume supineLabels = CaseInputs.readImage("labels", dir.resolve("supine_labels.nii.gz").toString());
-        Affine3D truth = truePlacementInverse(dir);
+        // the true map from supine world to the body (prone) frame: the inverse of the torso placement
+        Affine3D truth = BenchCalibration.truePlacement(dir).inverse();
         String name = dir.getFileName().toString();
         report(name, "identity", Affine3D.identity(), truth, supineLabels, 0);
 
@@ -97,7 +84,7 @@ public final class BenchTorsoAlignment {
 
         float[] wall = new float[proneLabels.data().length];
         for (int n = 0; n < wall.length; n++) {
-            wall[n] = Math.round(proneLabels.data()[n]) == 4 ? 1 : 0;
+            wall[n] = Math.round(proneLabels.data()[n]) == LabelMesher.CHEST_WALL ? 1 : 0;
         }
         Volume wallMask = new Volume(proneLabels.grid(), wall);
         double h = supine.grid().spacingMm(0);

@@ -38,8 +38,9 @@ class SupineStageAlignmentTest {
     @Test
     void aPlanOnAChestWideImageIsToldItsEllipsoidsWereCalibratedOnNarrowerOnes() {
         Grid3 g = Grid3.axisAligned(60, 4, 4, 5, 5, 5, -100, 0, 0);
-        assertEquals(Planner.WIDE_FIELD_WARNING, Planner.wideFieldWarning(g, wall(g, 0, 59)));
-        assertEquals(null, Planner.wideFieldWarning(g, wall(g, 3, 30)), "135 mm: around one breast");
+        assertEquals(Planner.WIDE_FIELD_WARNING, Planner.wideFieldWarning(SupineStage.chestWallSpanMm(g, wall(g, 0, 59))));
+        assertEquals(null, Planner.wideFieldWarning(SupineStage.chestWallSpanMm(g, wall(g, 3, 30))),
+                "135 mm: around one breast");
     }
 
     /**

@@ -10,6 +10,23 @@ import org.turnmark.geom.Grid3;
 
 class FieldOfViewEdgeTest {
 
+    /** 6 × 6 × 4 voxels of 2 mm; the slab fills it along x and z, voxel rows j = 2, 3 along y. */
+    private static final Grid3 SLAB_GRID = Grid3.axisAligned(6, 6, 4, 2, 2, 2, 10, -20, 5);
+
+    /** Fat (label 1) in the slab of {@link #SLAB_GRID}. */
+    private static byte[] slab() {
+        Grid3 g = SLAB_GRID;
+        byte[] labels = new byte[g.size()];
+        for (int k = 0; k < g.nz(); k++) {
+            for (int j = 2; j < 4; j++) {
+                for (int i = 0; i < g.nx(); i++) {
+                    labels[g.index(i, j, k)] = 1;
+                }
+            }
+        }
+        return labels;
+    }
+
     private static LabelMesh mesh(Grid3 g, byte[] labels, double h) {
         return LabelMesher.mesh(g, labels, new MesherConfig(h, MesherConfig.DEFAULT_TISSUE_FRACTION,
                 MesherConfig.DEFAULT_LESION_FRACTION, 0.0, MesherConfig.DEFAULT_MAX_ELEMENTS));
@@ -22,19 +39,8 @@ class FieldOfViewEdgeTest {
      */
     @Test
     void nodesOnTheImageFacesAreCutAndNodesInsideAreNot() {
-        int nx = 6;
-        int ny = 6;
-        int nz = 4;
-        Grid3 g = Grid3.axisAligned(nx, ny, nz, 2, 2, 2, 10, -20, 5);
-        byte[] labels = new byte[nx * ny * nz];
-        for (int k = 0; k < nz; k++) {
-            for (int j = 2; j < 4; j++) {
-                for (int i = 0; i < nx; i++) {
-                    labels[g.index(i, j, k)] = 1;
-                }
-            }
-        }
-        HexMesh m = mesh(g, labels, 4).mesh();
+        Grid3 g = SLAB_GRID;
+        HexMesh m = mesh(g, slab(), 4).mesh();
         boolean[] cut = FieldOfViewEdge.cutNodes(m, g);
         // the image spans x from 10 − 1 to 10 + 11 mm, z from 5 − 1 to 5 + 7 mm (outer voxel faces)
         double[] xyz = m.xyzMm();
@@ -94,16 +100,8 @@ class FieldOfViewEdgeTest {
      */
     @Test
     void distanceFromTheWallIsTheNearestWallNodeForCutNodesOnly() {
-        Grid3 g = Grid3.axisAligned(6, 6, 4, 2, 2, 2, 10, -20, 5);
-        byte[] labels = new byte[6 * 6 * 4];
-        for (int k = 0; k < 4; k++) {
-            for (int j = 2; j < 4; j++) {
-                for (int i = 0; i < 6; i++) {
-                    labels[g.index(i, j, k)] = 1;
-                }
-            }
-        }
-        HexMesh m = mesh(g, labels, 4).mesh();
+        Grid3 g = SLAB_GRID;
+        HexMesh m = mesh(g, slab(), 4).mesh();
         boolean[] cut = FieldOfViewEdge.cutNodes(m, g);
         double[] xyz = m.xyzMm();
         double yLow = Double.POSITIVE_INFINITY;

@@ -184,13 +184,13 @@ public final class RigidAligner {
             double cost = Double.NaN;
             int rounds = 0;
             while (rounds < MAX_ROUNDS) {
+                // the current affine enters as the solver's initial field (fine grid); the pre-alignment's
+                // own affine is applied after it
                 VectorField phi0 = DisplacementFields.fromAffine(affine, fine);
-                RegistrationInput at = new RegistrationInput(in.fixed(), in.moving(), in.fixedMask(), in.movingMask(),
-                        phi0, in.fixedName(), in.movingName());
                 LevelSolver solver = new LevelSolver(ctx.config, g, f, m, mov, in.moving().grid(), ctx.movingMaskData,
-                        phi0, null, ctx.reg.metricFor(g, f, m, mov, ctx.movingMaskBytes, at, false), null,
+                        phi0, null, ctx.reg.metricFor(g, f, m, mov, ctx.movingMaskBytes, in, false), null,
                         ctx.config.maxStepMm() * levelScale, levelScale);
-                DiffeomorphicRegistration.checkOverlap(solver, g, at);
+                DiffeomorphicRegistration.checkOverlap(solver, g, in);
                 double before = solver.evaluate(VectorField.zeros(g));
                 if (rounds == 0) {
                     costStart = before;
